@@ -1,0 +1,18 @@
+#![doc = include_str!("../README.md")]
+#![cfg_attr(not(any(test, feature = "std")), no_std)]
+#![forbid(unsafe_code)]
+#![deny(missing_docs)]
+
+pub mod math;
+pub mod moments;
+
+pub use moments::{
+    tri_len, Accumulator, BadFactor, Covariance, Ellipse, EstimateError, EwMoments, EwMoments2,
+    EwMoments3, ExactMoments, ExactMoments1, ExactMoments2, ExactMoments3, ExactMoments4,
+    ExactMoments5, ExactMoments6, Merge, Moments, Moments1, Moments2, Moments3, Moments4,
+    Moments5, Moments6, Pivoted, SampleError, Source, WeightedMoments, WeightedMoments2,
+};
+
+// The state budgets promised in the docs, checked at build time on every target.
+const _: () = assert!(core::mem::size_of::<Moments2<f32>>() <= 24);
+const _: () = assert!(core::mem::size_of::<ExactMoments2>() <= 48);

@@ -1,0 +1,123 @@
+//! The scalar trait that lets one implementation serve `f32` and `f64`.
+//!
+//! Every method maps to `core` arithmetic or to the `libm` function of the same name (the
+//! musl-derived implementations, correctly rounded or within 1 ulp for `sqrt`, `atan2`,
+//! `hypot`). NaN and infinity propagate exactly as in `libm`.
+
+use core::fmt::{Debug, Display};
+use core::ops::{Add, AddAssign, Div, Mul, MulAssign, Neg, Sub, SubAssign};
+
+/// A floating-point scalar: `f32` (single precision, the hot path on an FPU core) or `f64`
+/// (freeze and report time, host reference).
+pub trait Real:
+    Copy
+    + Debug
+    + Display
+    + Default
+    + PartialEq
+    + PartialOrd
+    + Add<Output = Self>
+    + Sub<Output = Self>
+    + Mul<Output = Self>
+    + Div<Output = Self>
+    + Neg<Output = Self>
+    + AddAssign
+    + SubAssign
+    + MulAssign
+    + 'static
+{
+    /// Additive identity.
+    const ZERO: Self;
+    /// Multiplicative identity.
+    const ONE: Self;
+    /// Machine epsilon (distance from 1 to the next larger value).
+    const EPSILON: Self;
+
+    /// Nearest value of this type to `x` (round to nearest even; `f64` is the identity).
+    fn from_f64(x: f64) -> Self;
+    /// Exact widening to `f64`.
+    fn to_f64(self) -> f64;
+    /// Nearest value of this type to the count `n` (exact up to 2^24 for `f32`, always for `f64`).
+    fn from_u32(n: u32) -> Self;
+    /// `true` unless NaN or infinite.
+    fn is_finite(self) -> bool;
+    /// Absolute value.
+    fn abs(self) -> Self;
+    /// Square root (`libm`); NaN for negative input.
+    fn sqrt(self) -> Self;
+    /// Four-quadrant arctangent of `self / x` (`libm::atan2`), in (-pi, pi].
+    fn atan2(self, x: Self) -> Self;
+    /// `sqrt(self^2 + y^2)` without undue overflow (`libm::hypot`).
+    fn hypot(self, y: Self) -> Self;
+    /// Larger of two values; a NaN operand gives the other (IEEE 754 maxNum).
+    fn max(self, other: Self) -> Self;
+    /// Smaller of two values; a NaN operand gives the other (IEEE 754 minNum).
+    fn min(self, other: Self) -> Self;
+}
+
+macro_rules! impl_real {
+    ($t:ty, $sqrt:path, $atan2:path, $hypot:path, $fmax:path, $fmin:path, $fabs:path) => {
+        impl Real for $t {
+            const ZERO: Self = 0.0;
+            const ONE: Self = 1.0;
+            const EPSILON: Self = <$t>::EPSILON;
+
+            #[inline]
+            fn from_f64(x: f64) -> Self {
+                x as $t
+            }
+            #[inline]
+            fn to_f64(self) -> f64 {
+                self as f64
+            }
+            #[inline]
+            fn from_u32(n: u32) -> Self {
+                n as $t
+            }
+            #[inline]
+            fn is_finite(self) -> bool {
+                <$t>::is_finite(self)
+            }
+            #[inline]
+            fn abs(self) -> Self {
+                $fabs(self)
+            }
+            #[inline]
+            fn sqrt(self) -> Self {
+                $sqrt(self)
+            }
+            #[inline]
+            fn atan2(self, x: Self) -> Self {
+                $atan2(self, x)
+            }
+            #[inline]
+            fn hypot(self, y: Self) -> Self {
+                $hypot(self, y)
+            }
+            #[inline]
+            fn max(self, other: Self) -> Self {
+                $fmax(self, other)
+            }
+            #[inline]
+            fn min(self, other: Self) -> Self {
+                $fmin(self, other)
+            }
+        }
+    };
+}
+
+impl_real!(f32, libm::sqrtf, libm::atan2f, libm::hypotf, libm::fmaxf, libm::fminf, libm::fabsf);
+impl_real!(f64, libm::sqrt, libm::atan2, libm::hypot, libm::fmax, libm::fmin, libm::fabs);
+
+#[cfg(test)]
+mod tests {
+    use super::Real;
+
+    #[test]
+    fn conversions_round_trip() {
+        assert_eq!(<f32 as Real>::from_f64(0.5).to_f64(), 0.5);
+        assert_eq!(<f64 as Real>::from_u32(u32::MAX), 4294967295.0);
+        assert!(!<f32 as Real>::is_finite(f32::NAN));
+        assert_eq!(Real::max(f64::NAN, 1.0), 1.0);
+    }
+}
