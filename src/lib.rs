@@ -9,8 +9,8 @@ pub mod moments;
 pub use moments::{
     tri_len, Accumulator, BadFactor, Covariance, Ellipse, EstimateError, EwMoments, EwMoments2,
     EwMoments3, ExactMoments, ExactMoments1, ExactMoments2, ExactMoments3, ExactMoments4,
-    ExactMoments5, ExactMoments6, Merge, Moments, Moments1, Moments2, Moments3, Moments4,
-    Moments5, Moments6, Pivoted, SampleError, Source, WeightedMoments, WeightedMoments2,
+    ExactMoments5, ExactMoments6, Merge, Moments, Moments1, Moments2, Moments3, Moments4, Moments5,
+    Moments6, Pivoted, SampleError, Source, WeightedMoments, WeightedMoments2,
 };
 
 // The state budgets promised in the docs, checked at build time on every target.

@@ -1,1 +1,8 @@
-//! Host side of covgate.
+//! Host side of covgate: an independent `f64` reference, one shared comparison helper, a
+//! seeded property-test runner, and (later) the command-line tool.
+//!
+//! Nothing in [`reference`] calls the code it checks.
+
+pub mod compare;
+pub mod reference;
+pub mod seeded;

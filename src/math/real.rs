@@ -106,8 +106,24 @@ macro_rules! impl_real {
     };
 }
 
-impl_real!(f32, libm::sqrtf, libm::atan2f, libm::hypotf, libm::fmaxf, libm::fminf, libm::fabsf);
-impl_real!(f64, libm::sqrt, libm::atan2, libm::hypot, libm::fmax, libm::fmin, libm::fabs);
+impl_real!(
+    f32,
+    libm::sqrtf,
+    libm::atan2f,
+    libm::hypotf,
+    libm::fmaxf,
+    libm::fminf,
+    libm::fabsf
+);
+impl_real!(
+    f64,
+    libm::sqrt,
+    libm::atan2,
+    libm::hypot,
+    libm::fmax,
+    libm::fmin,
+    libm::fabs
+);
 
 #[cfg(test)]
 mod tests {

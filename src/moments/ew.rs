@@ -78,7 +78,11 @@ impl<T: Real, const N: usize, const L: usize> EwMoments<T, N, L> {
         for ((i, j), s) in pairs::<N>().zip(next.cov.iter_mut()) {
             *s = keep * (*s + a * d[i] * d[j]);
         }
-        let finite = next.mean.iter().chain(next.cov.iter()).all(|v| v.is_finite());
+        let finite = next
+            .mean
+            .iter()
+            .chain(next.cov.iter())
+            .all(|v| v.is_finite());
         if !finite {
             return Err(SampleError::Overflow);
         }

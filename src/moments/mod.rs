@@ -2,10 +2,10 @@
 //!
 //! | type | sample | state for N = 2 | use |
 //! |---|---|---|---|
-//! | [`Moments`] | `[f32; N]` or `[f64; N]` | 24 bytes (f32), 40 (f64) | float Welford update, one pass, mergeable |
+//! | [`Moments`] | `[f32; N]` or `[f64; N]` | 24 bytes (f32), 48 (f64) | float Welford update, one pass, mergeable |
 //! | [`WeightedMoments`] | float plus a weight | 24 (f32), 48 (f64) | West's weighted update (frequency weights) |
 //! | [`ExactMoments`] | `[i32; N]` | 48 bytes | ADC counts, encoder ticks, micrometres: exact integer sums until a detected overflow |
-//! | [`EwMoments`] | float | 28 (f32), 48 (f64) | exponentially weighted, forgets old samples |
+//! | [`EwMoments`] | float | 28 (f32), 56 (f64) | exponentially weighted, forgets old samples |
 //! | [`Pivoted`] | the accumulator's or a wider type | the accumulator + the pivot | subtracts a pivot (first sample, nominal, ADC offset) before the cast |
 //!
 //! Cost of the N-D forms, in bytes, with `L = N (N + 1) / 2` upper-triangle entries:

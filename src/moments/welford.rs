@@ -47,9 +47,13 @@ impl<T: Real, const N: usize, const L: usize> Core<T, N, L> {
         let total = wa + wb;
         let mut next = *self;
         let mut d = [T::ZERO; N];
-        for i in 0..N {
-            d[i] = other.mean[i] - self.mean[i];
-            next.mean[i] = self.mean[i] + d[i] * (wb / total);
+        for ((di, m), (&ma, &mb)) in d
+            .iter_mut()
+            .zip(next.mean.iter_mut())
+            .zip(self.mean.iter().zip(other.mean.iter()))
+        {
+            *di = mb - ma;
+            *m = ma + *di * (wb / total);
         }
         let f = wa * wb / total;
         for (((i, j), c), cb) in pairs::<N>()
@@ -63,8 +67,8 @@ impl<T: Real, const N: usize, const L: usize> Core<T, N, L> {
 
     fn shifted(&self, delta: &[T; N]) -> Option<Self> {
         let mut next = *self;
-        for i in 0..N {
-            next.mean[i] += delta[i];
+        for (m, &d) in next.mean.iter_mut().zip(delta.iter()) {
+            *m += d;
         }
         all_finite(&next.mean).then_some(next)
     }
@@ -179,7 +183,11 @@ impl<T: Real, const N: usize, const L: usize> Merge for Moments<T, N, L> {
             .ok_or(SampleError::Overflow)?;
         let core = self
             .core
-            .merged(T::from_u32(self.count), &other.core, T::from_u32(other.count))
+            .merged(
+                T::from_u32(self.count),
+                &other.core,
+                T::from_u32(other.count),
+            )
             .ok_or(SampleError::Overflow)?;
         self.count = n;
         self.core = core;

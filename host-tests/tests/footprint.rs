@@ -1,0 +1,62 @@
+//! Bytes of state of every accumulator, measured with `size_of` on the host (x86_64). The
+//! 2-D budgets (24 bytes for the f32 accumulator, 48 for the exact integer one) are also
+//! checked at build time on every target in `src/lib.rs`.
+//!
+//! `cargo test -p covgate-host --test footprint -- --nocapture` prints the table.
+
+use core::mem::size_of;
+use covgate::*;
+
+#[test]
+fn state_sizes() {
+    let rows: Vec<(&str, usize)> = vec![
+        ("Moments2<f32>", size_of::<Moments2<f32>>()),
+        ("Moments2<f64>", size_of::<Moments2<f64>>()),
+        ("Moments3<f32>", size_of::<Moments3<f32>>()),
+        ("Moments6<f32>", size_of::<Moments6<f32>>()),
+        ("Moments6<f64>", size_of::<Moments6<f64>>()),
+        ("WeightedMoments2<f32>", size_of::<WeightedMoments2<f32>>()),
+        ("WeightedMoments2<f64>", size_of::<WeightedMoments2<f64>>()),
+        ("ExactMoments2", size_of::<ExactMoments2>()),
+        ("ExactMoments3", size_of::<ExactMoments3>()),
+        ("ExactMoments6", size_of::<ExactMoments6>()),
+        ("EwMoments2<f32>", size_of::<EwMoments2<f32>>()),
+        ("EwMoments2<f64>", size_of::<EwMoments2<f64>>()),
+        (
+            "Pivoted<Moments2<f32>, f64>",
+            size_of::<Pivoted<Moments2<f32>, f64, 2>>(),
+        ),
+        (
+            "Pivoted<Moments2<f32>, i32>",
+            size_of::<Pivoted<Moments2<f32>, i32, 2>>(),
+        ),
+        (
+            "Pivoted<ExactMoments2, i32>",
+            size_of::<Pivoted<ExactMoments2, i32, 2>>(),
+        ),
+    ];
+    println!("\nstate bytes (size_of, host)");
+    for (name, bytes) in &rows {
+        println!("{name:<30} {bytes:>4}");
+    }
+    assert!(size_of::<Moments2<f32>>() <= 24);
+    assert!(size_of::<ExactMoments2>() <= 48);
+    // The N-D formulas stated in the moments module docs.
+    for (n, l, f32_bytes, exact_bytes) in [
+        (
+            3usize,
+            6usize,
+            size_of::<Moments3<f32>>(),
+            size_of::<ExactMoments3>(),
+        ),
+        (
+            6,
+            21,
+            size_of::<Moments6<f32>>(),
+            size_of::<ExactMoments6>(),
+        ),
+    ] {
+        assert_eq!(f32_bytes, 4 + 4 * n + 4 * l, "Moments{n}<f32>");
+        assert_eq!(exact_bytes, 8 + 8 * n + 8 * l, "ExactMoments{n}");
+    }
+}
