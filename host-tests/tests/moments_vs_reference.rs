@@ -73,18 +73,41 @@ fn check_against(
     cov_tol: f64,
 ) -> Result<(), TestCaseError> {
     let r = reference::moments(&s.xs);
-    let rc = r.sample_cov();
+    check_summary(s, (mean, cov), (r.mean, r.sample_cov()), mean_tol, cov_tol)
+}
+
+/// As [`check_against`], against a given expected mean and covariance.
+fn check_summary(
+    s: &Stream,
+    (mean, cov): ([f64; 2], [[f64; 2]; 2]),
+    (want_mean, want_cov): ([f64; 2], [[f64; 2]; 2]),
+    mean_tol: f64,
+    cov_tol: f64,
+) -> Result<(), TestCaseError> {
     for i in 0..2 {
         Tol::new(mean_tol * s.scale[i], 4.0 * EPS64)
-            .check(&format!("mean[{i}]"), mean[i], r.mean[i])
+            .check(&format!("mean[{i}]"), mean[i], want_mean[i])
             .map_err(fail)?;
         for j in 0..2 {
             Tol::abs(cov_tol * s.scale[i] * s.scale[j])
-                .check(&format!("cov[{i}][{j}]"), cov[i][j], rc[i][j])
+                .check(&format!("cov[{i}][{j}]"), cov[i][j], want_cov[i][j])
                 .map_err(fail)?;
         }
     }
     Ok(())
+}
+
+/// The f32 accumulator behind a first-sample pivot against the reference (tolerance below).
+fn check_f32_pivoted(s: &Stream, p: &Pivoted<Moments2<f32>, f64, 2>) -> Result<(), TestCaseError> {
+    let sqn = (s.xs.len() as f64).sqrt();
+    let cov = p
+        .inner()
+        .sample_covariance()
+        .unwrap()
+        .matrix()
+        .map(|r| r.map(f64::from));
+    let tol = 512.0 * EPS32 * 4.0;
+    check_against(s, p.mean_f64().unwrap(), cov, tol, tol * sqn)
 }
 
 /// Tolerance table (each entry relative to the per-axis scale):
@@ -125,12 +148,6 @@ fn pivoted_f64_and_f32_match_two_pass() {
         }
         let sqn = (s.xs.len() as f64).sqrt();
         let c64 = *m64.inner().sample_covariance().unwrap().matrix();
-        let c32 = m32
-            .inner()
-            .sample_covariance()
-            .unwrap()
-            .matrix()
-            .map(|r| r.map(f64::from));
         // The mean is pivot + offset mean: exact pivot, the rounding is in the offset part.
         check_against(
             &s,
@@ -139,13 +156,7 @@ fn pivoted_f64_and_f32_match_two_pass() {
             64.0 * EPS64 * 4.0,
             64.0 * EPS64 * 4.0 * sqn,
         )?;
-        check_against(
-            &s,
-            m32.mean_f64().unwrap(),
-            c32,
-            512.0 * EPS32 * 4.0,
-            512.0 * EPS32 * 4.0 * sqn,
-        )
+        check_f32_pivoted(&s, &m32)
     });
 }
 
@@ -161,19 +172,16 @@ fn pivot_does_not_change_the_answer() {
         }
         let k = 1.0 + s.kappa();
         let sqn = (s.xs.len() as f64).sqrt();
-        let a = plain.sample_covariance().unwrap();
-        let b = given.inner().sample_covariance().unwrap();
+        let a = *plain.sample_covariance().unwrap().matrix();
+        let b = *given.inner().sample_covariance().unwrap().matrix();
         let (pm, gm) = (plain.mean().unwrap(), given.mean_f64().unwrap());
-        for i in 0..2 {
-            Tol::abs(64.0 * EPS64 * k * s.scale[i])
-                .check("mean", pm[i], gm[i])
-                .map_err(fail)?;
-            for j in 0..2 {
-                Tol::abs(128.0 * EPS64 * k * sqn * s.scale[i] * s.scale[j])
-                    .check("cov", a.matrix()[i][j], b.matrix()[i][j])
-                    .map_err(fail)?;
-            }
-        }
+        check_summary(
+            &s,
+            (pm, a),
+            (gm, b),
+            64.0 * EPS64 * k,
+            128.0 * EPS64 * k * sqn,
+        )?;
         Ok(())
     });
 }
@@ -309,19 +317,7 @@ fn float_merge_equals_one_pass() {
             prop_assert_eq!(a.count(), w.count());
             let sqn = (s.xs.len() as f64).sqrt();
             let k = 1.0 + s.kappa();
-            let ca = a
-                .inner()
-                .sample_covariance()
-                .unwrap()
-                .matrix()
-                .map(|r| r.map(f64::from));
-            check_against(
-                &s,
-                a.mean_f64().unwrap(),
-                ca,
-                512.0 * EPS32 * 4.0,
-                512.0 * EPS32 * 4.0 * sqn,
-            )?;
+            check_f32_pivoted(&s, &a)?;
             check_against(
                 &s,
                 fa.mean().unwrap(),
@@ -345,18 +341,15 @@ fn weighted_matches_weighted_two_pass() {
         let r = reference::weighted(&s.xs, ws);
         let k = 1.0 + s.kappa();
         let sqn = (s.xs.len() as f64).sqrt();
-        let pc = m.population_covariance().unwrap();
-        let rc = r.population_cov();
-        for i in 0..2 {
-            Tol::abs(64.0 * EPS64 * k * s.scale[i])
-                .check("mean", m.mean().unwrap()[i], r.mean[i])
-                .map_err(fail)?;
-            for j in 0..2 {
-                Tol::abs(256.0 * EPS64 * k * sqn * s.scale[i] * s.scale[j])
-                    .check("cov", pc.matrix()[i][j], rc[i][j])
-                    .map_err(fail)?;
-            }
-        }
+        let pc = *m.population_covariance().unwrap().matrix();
+        let want = (r.mean, r.population_cov());
+        check_summary(
+            &s,
+            (m.mean().unwrap(), pc),
+            want,
+            64.0 * EPS64 * k,
+            256.0 * EPS64 * k * sqn,
+        )?;
         Tol::rel(1e-13)
             .check("weight", m.weight(), r.weight)
             .map_err(fail)
@@ -378,16 +371,8 @@ fn exponential_matches_direct_weights() {
             let k = 1.0 + s.kappa();
             let sqn = (s.xs.len() as f64).sqrt();
             let c = m.covariance().unwrap();
-            for i in 0..2 {
-                Tol::abs(64.0 * EPS64 * k * s.scale[i])
-                    .check("mean", m.mean().unwrap()[i], rm[i])
-                    .map_err(fail)?;
-                for j in 0..2 {
-                    Tol::abs(256.0 * EPS64 * k * sqn * s.scale[i] * s.scale[j])
-                        .check("cov", c.matrix()[i][j], rc[i][j])
-                        .map_err(fail)?;
-                }
-            }
+            let got = (m.mean().unwrap(), *c.matrix());
+            check_summary(&s, got, (rm, rc), 64.0 * EPS64 * k, 256.0 * EPS64 * k * sqn)?;
             // Positive semi-definite by construction.
             let [[p, q], [_, r]] = *c.matrix();
             prop_assert!(p >= 0.0 && r >= 0.0 && p * r - q * q >= -1e-12 * p * r);
