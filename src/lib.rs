@@ -3,9 +3,14 @@
 #![forbid(unsafe_code)]
 #![deny(missing_docs)]
 
+pub mod gate;
+mod gaussian;
 pub mod math;
 pub mod moments;
 
+pub use gate::{Distance, Gate, IntGate, IntGate2, Learner, Limit, Reason, Verdict};
+pub use gaussian::{Baseline, FreezeError};
+pub use math::CHI2_LIMITS;
 pub use moments::{
     tri_len, Accumulator, BadFactor, Covariance, Ellipse, EstimateError, EwMoments, EwMoments2,
     EwMoments3, ExactMoments, ExactMoments1, ExactMoments2, ExactMoments3, ExactMoments4,

@@ -4,5 +4,6 @@
 //! Nothing in [`reference`] calls the code it checks.
 
 pub mod compare;
+pub mod fixture;
 pub mod reference;
 pub mod seeded;

@@ -2,8 +2,17 @@
 //!
 //! Nothing here holds state. Each function names its method and origin in its docs.
 
+mod beta;
+mod chi2;
+mod chi2_table;
+mod error;
 mod linalg;
 mod real;
+mod root;
 
-pub use linalg::det_symmetric_psd;
+pub use beta::{phase1_limit, phase2_limit, phase2_tail, Beta, FDist};
+pub use chi2::ChiSquare;
+pub use chi2_table::{Chi2Table, CHI2_LIMITS};
+pub use error::LimitError;
+pub use linalg::{cholesky, det_symmetric_psd, symmetric_eigenvalues};
 pub use real::Real;

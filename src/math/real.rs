@@ -53,10 +53,23 @@ pub trait Real:
     fn max(self, other: Self) -> Self;
     /// Smaller of two values; a NaN operand gives the other (IEEE 754 minNum).
     fn min(self, other: Self) -> Self;
+    /// `e^self` (`libm::exp`).
+    fn exp(self) -> Self;
+    /// Natural logarithm (`libm::log`); NaN below zero, -inf at zero.
+    fn ln(self) -> Self;
+    /// `ln(1 + self)`, accurate near zero (`libm::log1p`).
+    fn ln_1p(self) -> Self;
+    /// Complementary error function (`libm::erfc`), accurate in the far tail.
+    fn erfc(self) -> Self;
+    /// `ln |Gamma(self)|` (`libm::lgamma`).
+    fn ln_gamma(self) -> Self;
+    /// Largest integer not above `self` (`libm::floor`).
+    fn floor(self) -> Self;
 }
 
 macro_rules! impl_real {
-    ($t:ty, $sqrt:path, $atan2:path, $hypot:path, $fmax:path, $fmin:path, $fabs:path) => {
+    ($t:ty, $sqrt:path, $atan2:path, $hypot:path, $fmax:path, $fmin:path, $fabs:path,
+     $exp:path, $ln:path, $ln1p:path, $erfc:path, $lgamma:path, $floor:path) => {
         impl Real for $t {
             const ZERO: Self = 0.0;
             const ONE: Self = 1.0;
@@ -102,6 +115,30 @@ macro_rules! impl_real {
             fn min(self, other: Self) -> Self {
                 $fmin(self, other)
             }
+            #[inline]
+            fn exp(self) -> Self {
+                $exp(self)
+            }
+            #[inline]
+            fn ln(self) -> Self {
+                $ln(self)
+            }
+            #[inline]
+            fn ln_1p(self) -> Self {
+                $ln1p(self)
+            }
+            #[inline]
+            fn erfc(self) -> Self {
+                $erfc(self)
+            }
+            #[inline]
+            fn ln_gamma(self) -> Self {
+                $lgamma(self)
+            }
+            #[inline]
+            fn floor(self) -> Self {
+                $floor(self)
+            }
         }
     };
 }
@@ -113,7 +150,13 @@ impl_real!(
     libm::hypotf,
     libm::fmaxf,
     libm::fminf,
-    libm::fabsf
+    libm::fabsf,
+    libm::expf,
+    libm::logf,
+    libm::log1pf,
+    libm::erfcf,
+    libm::lgammaf,
+    libm::floorf
 );
 impl_real!(
     f64,
@@ -122,7 +165,13 @@ impl_real!(
     libm::hypot,
     libm::fmax,
     libm::fmin,
-    libm::fabs
+    libm::fabs,
+    libm::exp,
+    libm::log,
+    libm::log1p,
+    libm::erfc,
+    libm::lgamma,
+    libm::floor
 );
 
 #[cfg(test)]

@@ -1,0 +1,175 @@
+//! The integer-only gate: integer multiply-adds and one compare per sample.
+
+use crate::gaussian::FreezeError;
+use crate::moments::{pairs, Shape};
+
+use super::Gate;
+
+/// A Mahalanobis gate for integer samples (ADC counts, encoder ticks, micrometres) whose
+/// per-sample test uses only integer multiply-adds and one compare: no float, no division.
+///
+/// Built once from an `f64` [`Gate`] whose baseline is in the same integer units. With the
+/// integer pivot `p = round(mean)`, `f = mean - p` and `u = x - p`, the gate's test
+/// `(u - f)' P (u - f) <= h` (`P` the inverse covariance) is rewritten as
+/// `u' P u - 2 (P f)' u <= h - f' P f`, multiplied by `K = 2^k` and rounded:
+/// `sum a_ij u_i u_j + sum d_i u_i <= t` in `i64`. Before the quadratic form, each `|u_i|` is
+/// compared with the reach `U_i = ceil(sqrt(h C_ii) + 1/2) + 1`: beyond it the sample lies
+/// outside the gate's bounding box and is refused without further arithmetic. `K` is the
+/// largest power of two that keeps every partial sum below 2^62 for samples within reach, so
+/// no product can overflow.
+///
+/// Agreement with the `f64` gate: the verdicts are identical for every sample whose exact
+/// `d^2` differs from the limit by more than [`band`](Self::band) =
+/// `(E + 1) / K + 8 N EPSILON h / rcond`, where `E = (sum_{i<=j} U_i U_j + sum U_i) / 2` bounds
+/// the rounding of the coefficients, `1` the rounding of `t`, and the last term the `f64`
+/// gate's own error. For a 12-bit ADC baseline the band is about 1e-10 of the limit (the host
+/// test `int_gate_agreement` prints it).
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct IntGate<const N: usize, const L: usize> {
+    pivot: [i32; N],
+    reach: [i64; N],
+    quad: [i64; L],
+    lin: [i64; N],
+    threshold: i64,
+    band: f64,
+}
+
+/// The 2-D integer gate.
+pub type IntGate2 = IntGate<2, 3>;
+
+/// 2^62 as f64: the ceiling for every partial sum of the integer quadratic form.
+const CEILING: f64 = 4_611_686_018_427_387_904.0;
+
+fn round_to_i64(v: f64) -> Result<i64, FreezeError> {
+    let r = libm::round(v);
+    if r.is_finite() && r.abs() < CEILING {
+        Ok(r as i64)
+    } else {
+        Err(FreezeError::OutOfRange)
+    }
+}
+
+impl<const N: usize, const L: usize> IntGate<N, L> {
+    /// Derives the integer coefficients from an `f64` gate in integer sample units.
+    /// [`FreezeError::OutOfRange`] if the mean does not fit `i32` or the gate is so wide
+    /// (reach above about 2^29 counts) that no scale keeps the form within `i64`.
+    pub fn from_gate(gate: &Gate<f64, N>) -> Result<Self, FreezeError> {
+        let () = Shape::<N, L>::CHECK;
+        let base = gate.baseline();
+        let h = gate.limit();
+        let mean = *base.mean();
+        let mut pivot = [0i32; N];
+        let mut f = [0.0f64; N];
+        for i in 0..N {
+            let r = libm::round(mean[i]);
+            if !(r.abs() <= f64::from(i32::MAX)) {
+                return Err(FreezeError::OutOfRange);
+            }
+            pivot[i] = r as i32;
+            f[i] = mean[i] - r;
+        }
+        let prec = base.precision();
+        let cov = base.covariance();
+        let mut reach = [0i64; N];
+        let mut reach_f = [0.0f64; N];
+        for i in 0..N {
+            let r = libm::ceil(libm::sqrt(h * cov.matrix()[i][i]) + 0.5) + 1.0;
+            if !(r < 536_870_912.0) {
+                return Err(FreezeError::OutOfRange);
+            }
+            reach[i] = r as i64;
+            reach_f[i] = r;
+        }
+        // Coefficients before scaling: P' (off-diagonal doubled), c = -2 P f, r = h - f'Pf.
+        let mut quad_f = [0.0f64; L];
+        let mut err = 0.0f64;
+        let mut size = 0.0f64;
+        for ((i, j), q) in pairs::<N>().zip(quad_f.iter_mut()) {
+            *q = if i == j { prec[i][i] } else { 2.0 * prec[i][j] };
+            size += q.abs() * reach_f[i] * reach_f[j];
+            err += reach_f[i] * reach_f[j];
+        }
+        let mut lin_f = [0.0f64; N];
+        let mut fpf = 0.0;
+        for i in 0..N {
+            let mut g = 0.0;
+            for j in 0..N {
+                g += prec[i][j] * f[j];
+            }
+            fpf += f[i] * g;
+            lin_f[i] = -2.0 * g;
+            size += lin_f[i].abs() * reach_f[i];
+            err += reach_f[i];
+        }
+        let rest = h - fpf;
+        size += rest.abs() + 1.0;
+        err *= 0.5;
+        // Largest K = 2^k with K * size + err below 2^61 (a factor 2 of margin under 2^62).
+        let room = CEILING * 0.5 - err;
+        if !(room > 0.0 && size > 0.0 && size.is_finite()) {
+            return Err(FreezeError::OutOfRange);
+        }
+        let mut k = libm::floor(libm::log2(room / size)) as i32;
+        while k > -1075 && libm::scalbn(size, k) > room {
+            k -= 1;
+        }
+        if k < 0 {
+            return Err(FreezeError::OutOfRange);
+        }
+        let scale = libm::scalbn(1.0, k);
+        let mut quad = [0i64; L];
+        for (q, &v) in quad.iter_mut().zip(quad_f.iter()) {
+            *q = round_to_i64(v * scale)?;
+        }
+        let mut lin = [0i64; N];
+        for (l, &v) in lin.iter_mut().zip(lin_f.iter()) {
+            *l = round_to_i64(v * scale)?;
+        }
+        let threshold = round_to_i64(libm::floor(rest * scale))?;
+        let rcond = base.reciprocal_condition();
+        let band = (err + 1.0) / scale + 8.0 * N as f64 * f64::EPSILON * h / rcond;
+        Ok(IntGate {
+            pivot,
+            reach,
+            quad,
+            lin,
+            threshold,
+            band,
+        })
+    }
+
+    /// The per-sample test: `true` when the sample is inside the gate. Integer operations only.
+    #[inline]
+    pub fn passes(&self, x: &[i32; N]) -> bool {
+        let mut u = [0i64; N];
+        for i in 0..N {
+            let d = i64::from(x[i]) - i64::from(self.pivot[i]);
+            if d.abs() > self.reach[i] {
+                return false;
+            }
+            u[i] = d;
+        }
+        // Every partial sum is below 2^62 in size by construction (see the type docs), so the
+        // wrapping operations never wrap; they only keep overflow checks out of the hot path.
+        let mut s = 0i64;
+        for ((i, j), &a) in pairs::<N>().zip(self.quad.iter()) {
+            s = s.wrapping_add(a.wrapping_mul(u[i].wrapping_mul(u[j])));
+        }
+        for (&d, &ui) in self.lin.iter().zip(u.iter()) {
+            s = s.wrapping_add(d.wrapping_mul(ui));
+        }
+        s <= self.threshold
+    }
+
+    /// Half-width of the band around the limit (in units of `d^2`) outside which this gate's
+    /// verdict equals the `f64` gate's.
+    pub fn band(&self) -> f64 {
+        self.band
+    }
+
+    /// The integer pivot (the baseline mean, rounded).
+    pub fn pivot(&self) -> &[i32; N] {
+        &self.pivot
+    }
+}
