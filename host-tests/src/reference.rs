@@ -120,3 +120,40 @@ mod tests {
         assert_eq!(s.sample_cov(), [[2.0, 4.0], [4.0, 8.0]]);
     }
 }
+
+/// Mahalanobis distance squared by solving `C y = x - mean` with Gaussian elimination and
+/// partial pivoting (not the library's Cholesky whitening), then `d^2 = (x - mean)' y`.
+/// `None` if a pivot vanishes.
+pub fn mahalanobis2<const N: usize>(
+    mean: &[f64; N],
+    cov: &[[f64; N]; N],
+    x: &[f64; N],
+) -> Option<f64> {
+    let d: Vec<f64> = (0..N).map(|i| x[i] - mean[i]).collect();
+    let mut a: Vec<Vec<f64>> = (0..N)
+        .map(|i| {
+            let mut row = cov[i].to_vec();
+            row.push(d[i]);
+            row
+        })
+        .collect();
+    for col in 0..N {
+        let piv = (col..N).max_by(|&i, &j| a[i][col].abs().total_cmp(&a[j][col].abs()))?;
+        if a[piv][col] == 0.0 {
+            return None;
+        }
+        a.swap(col, piv);
+        for r in (col + 1)..N {
+            let f = a[r][col] / a[col][col];
+            for c in col..=N {
+                a[r][c] -= f * a[col][c];
+            }
+        }
+    }
+    let mut y = vec![0.0; N];
+    for i in (0..N).rev() {
+        let s: f64 = ((i + 1)..N).map(|j| a[i][j] * y[j]).sum();
+        y[i] = (a[i][N] - s) / a[i][i];
+    }
+    Some(d.iter().zip(&y).map(|(p, q)| p * q).sum())
+}
