@@ -2,6 +2,10 @@
 #![cfg_attr(not(any(test, feature = "std")), no_std)]
 #![forbid(unsafe_code)]
 #![deny(missing_docs)]
+// Small dense matrices read best with their indices (all loops run over 0..N).
+#![allow(clippy::needless_range_loop)]
+// `!(x > 0)` is deliberate throughout: it is true for NaN, which must be refused too.
+#![allow(clippy::neg_cmp_op_on_partial_ord)]
 
 pub mod gate;
 mod gaussian;

@@ -6,7 +6,9 @@
 //!
 //!     cargo run -p covgate-host --example drilling_cell
 
-use covgate::{ExactMoments2, Merge, Moments2, Pivoted};
+use covgate::{
+    Baseline, ExactMoments2, Gate, IntGate2, Learner, Limit, Merge, Moments2, Pivoted, Verdict,
+};
 
 /// xorshift64* and Box-Muller: a seeded, dependency-free normal generator for the demo.
 struct Demo(u64);
@@ -110,5 +112,68 @@ fn main() {
         "spindle A variance of dx, f32 Welford vs exact integer: {:.4} vs {:.4} um^2",
         fa.matrix()[0][0],
         ea.matrix()[0][0]
+    );
+
+    // Gate new holes on spindle A: learn from its first 30 parts, then judge each new one
+    // against the exact Phase II limit for a baseline of 30 (false-alarm rate 0.27 %).
+    println!("\nspindle A gate: learn 30 parts, then judge new holes (Phase II, alpha 0.0027)");
+    let mut learner = Learner::<f32, 2, 3>::new(30, 0.0027, [1.0, 1.0]).expect("valid setting");
+    for x in &a[..30] {
+        let v = learner.push([x[0] as f32, x[1] as f32]);
+        assert_eq!(v, Verdict::NotReady);
+    }
+    let gate = *learner.gate().expect("30 distinct parts freeze");
+    println!(
+        "limit d^2 <= {:.2} (chi-square would say {:.2})",
+        gate.limit(),
+        11.83
+    );
+    let new_holes = [
+        [10.0f32, -4.0],
+        [25.0, 3.0],
+        [14.0, -14.0],
+        [40.0, 18.0],
+        [-9.0, 10.0],
+    ];
+    for x in new_holes {
+        let verdict = match learner.push(x) {
+            Verdict::Go(d) => format!("go     d^2 = {:6.2}  tail p = {:.4}", d.d2, d.tail),
+            Verdict::NoGo(covgate::Reason::OutsideGate(d)) => {
+                format!("NO-GO  d^2 = {:6.2}  tail p = {:.2e}", d.d2, d.tail)
+            }
+            other => format!("{other:?}"),
+        };
+        println!("  hole at ({:>5.1}, {:>5.1}) um: {verdict}", x[0], x[1]);
+    }
+
+    // The same gate in integers only, for a core without FPU: built once from an f64 gate.
+    let base = Baseline::new(
+        station_a.mean_f64().expect("samples"),
+        &station_a
+            .inner()
+            .sample_covariance::<f64>()
+            .expect("two or more"),
+    )
+    .expect("spread in both axes");
+    let g64 = Gate::new(
+        base,
+        Limit::PhaseII {
+            m: station_a.count(),
+            alpha: 0.0027,
+        },
+    )
+    .expect("valid");
+    let int_gate = IntGate2::from_gate(&g64).expect("micrometre range fits");
+    let agree = new_holes
+        .iter()
+        .filter(|x| {
+            g64.passes(&[f64::from(x[0]), f64::from(x[1])])
+                == int_gate.passes(&[x[0] as i32, x[1] as i32])
+        })
+        .count();
+    println!(
+        "integer-only gate from all 400 parts of spindle A: same verdict as its f64 gate on {agree} of {} new holes (band {:.1e} in d^2)",
+        new_holes.len(),
+        int_gate.band()
     );
 }

@@ -3,6 +3,7 @@
 //!
 //! Nothing in [`reference`] calls the code it checks.
 
+pub mod cli;
 pub mod compare;
 pub mod fixture;
 pub mod reference;

@@ -100,27 +100,6 @@ pub fn exponential<const N: usize>(xs: &[[f64; N]], a: f64) -> ([f64; N], [[f64;
     (s.mean, s.population_cov())
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn compensated_sum_keeps_small_terms() {
-        // 1 + 1e-16 * 10 - 1 loses everything in plain f64.
-        let xs = std::iter::once(1.0)
-            .chain(std::iter::repeat_n(1e-16, 10))
-            .chain(std::iter::once(-1.0));
-        assert!((sum(xs) - 1e-15).abs() < 1e-30);
-    }
-
-    #[test]
-    fn two_pass_by_hand() {
-        let s = moments(&[[1.0, 2.0], [3.0, 6.0]]);
-        assert_eq!(s.mean, [2.0, 4.0]);
-        assert_eq!(s.sample_cov(), [[2.0, 4.0], [4.0, 8.0]]);
-    }
-}
-
 /// Mahalanobis distance squared by solving `C y = x - mean` with Gaussian elimination and
 /// partial pivoting (not the library's Cholesky whitening), then `d^2 = (x - mean)' y`.
 /// `None` if a pivot vanishes.
@@ -143,10 +122,11 @@ pub fn mahalanobis2<const N: usize>(
             return None;
         }
         a.swap(col, piv);
-        for r in (col + 1)..N {
-            let f = a[r][col] / a[col][col];
-            for c in col..=N {
-                a[r][c] -= f * a[col][c];
+        let pivot_row = a[col].clone();
+        for row in a.iter_mut().skip(col + 1) {
+            let f = row[col] / pivot_row[col];
+            for (v, p) in row.iter_mut().zip(&pivot_row).skip(col) {
+                *v -= f * p;
             }
         }
     }
@@ -156,4 +136,25 @@ pub fn mahalanobis2<const N: usize>(
         y[i] = (a[i][N] - s) / a[i][i];
     }
     Some(d.iter().zip(&y).map(|(p, q)| p * q).sum())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn compensated_sum_keeps_small_terms() {
+        // 1 + 1e-16 * 10 - 1 loses everything in plain f64.
+        let xs = std::iter::once(1.0)
+            .chain(std::iter::repeat_n(1e-16, 10))
+            .chain(std::iter::once(-1.0));
+        assert!((sum(xs) - 1e-15).abs() < 1e-30);
+    }
+
+    #[test]
+    fn two_pass_by_hand() {
+        let s = moments(&[[1.0, 2.0], [3.0, 6.0]]);
+        assert_eq!(s.mean, [2.0, 4.0]);
+        assert_eq!(s.sample_cov(), [[2.0, 4.0], [4.0, 8.0]]);
+    }
 }

@@ -50,7 +50,7 @@ impl ChiSquare {
         let half = T::from_f64(0.5);
         let e = (-(x * half)).exp();
         let df = self.df();
-        if df % 2 == 0 {
+        if df.is_multiple_of(2) {
             let h = x * half;
             let (mut term, mut sum) = (T::ONE, T::ONE);
             for r in 1..df / 2 {

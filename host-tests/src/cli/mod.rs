@@ -1,0 +1,22 @@
+//! The commands of the `covgate` binary, one module each, testable without a process.
+
+pub mod limits;
+
+use std::process::ExitCode;
+
+/// Prints `covgate: <msg>` as one line on stderr and gives exit code 2.
+pub fn fail(msg: &str) -> ExitCode {
+    eprintln!("covgate: {}", first_line(msg));
+    ExitCode::from(2)
+}
+
+/// The first non-empty line of a message, without a leading `error: `; a line ending in `:`
+/// is joined with the one that follows (clap's "required arguments were not provided:").
+pub fn first_line(msg: &str) -> String {
+    let mut lines = msg.lines().map(str::trim).filter(|l| !l.is_empty());
+    let first = lines.next().unwrap_or("").trim_start_matches("error: ");
+    match (first.ends_with(':'), lines.next()) {
+        (true, Some(next)) => format!("{first} {next}"),
+        _ => first.to_string(),
+    }
+}
