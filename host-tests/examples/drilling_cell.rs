@@ -123,10 +123,13 @@ fn main() {
         assert_eq!(v, Verdict::NotReady);
     }
     let gate = *learner.gate().expect("30 distinct parts freeze");
+    let chi2 = covgate::CHI2_LIMITS
+        .lookup_f32(2, 0.0027)
+        .expect("in the const table");
     println!(
-        "limit d^2 <= {:.2} (chi-square would say {:.2})",
-        gate.limit(),
-        11.83
+        "limit d^2 <= {:.2} (the chi-square limit, {chi2:.2}, ignores that 30 parts only \
+         estimate the process)",
+        gate.limit()
     );
     let new_holes = [
         [10.0f32, -4.0],
