@@ -33,6 +33,7 @@ fn main() {
 
 /// Chi-square upper quantiles `q` with `P(X > q) = alpha`, for 1 to 6 degrees of freedom.
 #[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = \"defmt\", derive(defmt::Format))]
 pub struct Chi2Table {{
     /// The false-alarm rates, one per column.
     pub alpha: [f64; 6],

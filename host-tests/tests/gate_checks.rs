@@ -60,6 +60,28 @@ fn mahalanobis_matches_the_reference() {
 }
 
 #[test]
+fn six_dimensional_distance_matches_the_reference() {
+    // C = A A' + I/2 from a random 6x6 A: positive definite, moderately conditioned.
+    let a = prop::array::uniform6(prop::array::uniform6(-1.0..1.0f64));
+    let x = prop::array::uniform6(-3.0..3.0f64);
+    check("mahalanobis_6d", 256, (a, x), |(a, x)| {
+        let mut c = [[0.0; 6]; 6];
+        for i in 0..6 {
+            for j in 0..6 {
+                c[i][j] = (0..6).map(|k| a[i][k] * a[j][k]).sum::<f64>();
+            }
+            c[i][i] += 0.5;
+        }
+        let mean = [1.0, -2.0, 3.0, 0.5, 0.0, 10.0];
+        let b = Baseline::new(mean, &Covariance::from_matrix(c)).unwrap();
+        let want = reference::mahalanobis2(&mean, &c, &x).unwrap();
+        let tol = Tol::new(1e-300, 64.0 * 6.0 * f64::EPSILON / b.reciprocal_condition());
+        tol.check("d2 6-D", b.mahalanobis2(&x), want)
+            .map_err(TestCaseError::fail)
+    });
+}
+
+#[test]
 fn degenerate_covariances_give_an_error_never_a_nan_verdict() {
     let v = (-10.0..10.0f64, -10.0..10.0f64);
     check("degenerate", 512, (v, 0usize..4), |((a, b), kind)| {
