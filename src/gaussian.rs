@@ -76,7 +76,9 @@ impl<T: Real, const N: usize> Baseline<T, N> {
     /// with resolution `q_i` to each variance (common practice: a uniform rounding error of
     /// width `q` has variance `q^2 / 12`, independent of the process). Every variance is then at
     /// least `q_i^2 / 12` and, with all `q_i > 0`, the matrix is positive definite: a baseline
-    /// whose readings never changed still freezes. A negative or non-finite `q_i` is
+    /// whose readings never changed freezes, unless its other axes are so much wider that the
+    /// result is [`FreezeError::IllConditioned`] (in `f32`, wider than about 1/sqrt(sqrt(eps)),
+    /// some 50 times the resolution floor in standard deviation). A negative or non-finite `q_i` is
     /// [`FreezeError::NotFinite`]; `q_i = 0` adds nothing on that axis.
     pub fn with_resolution(
         mean: [T; N],
@@ -97,6 +99,7 @@ impl<T: Real, const N: usize> Baseline<T, N> {
     }
 
     fn freeze(mean: [T; N], cov: [[T; N]; N]) -> Result<Self, FreezeError> {
+        let () = crate::moments::Dim::<N>::CHECK;
         let finite = mean
             .iter()
             .chain(cov.iter().flatten())

@@ -100,6 +100,24 @@ pub fn exponential<const N: usize>(xs: &[[f64; N]], a: f64) -> ([f64; N], [[f64;
     (s.mean, s.population_cov())
 }
 
+/// Lower Cholesky factor by the column-oriented (Cholesky–Crout) order, written apart from
+/// the library's row-oriented one so that Monte Carlo draws do not share its code. `None` if a
+/// pivot is not positive.
+pub fn cholesky<const N: usize>(c: &[[f64; N]; N]) -> Option<[[f64; N]; N]> {
+    let mut l = [[0.0; N]; N];
+    for j in 0..N {
+        let d = c[j][j] - (0..j).map(|k| l[j][k] * l[j][k]).sum::<f64>();
+        if d <= 0.0 {
+            return None;
+        }
+        l[j][j] = d.sqrt();
+        for i in (j + 1)..N {
+            l[i][j] = (c[i][j] - (0..j).map(|k| l[i][k] * l[j][k]).sum::<f64>()) / l[j][j];
+        }
+    }
+    Some(l)
+}
+
 /// Mahalanobis distance squared by solving `C y = x - mean` with Gaussian elimination and
 /// partial pivoting (not the library's Cholesky whitening), then `d^2 = (x - mean)' y`.
 /// `None` if a pivot vanishes.

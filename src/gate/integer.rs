@@ -22,8 +22,8 @@ use super::Gate;
 /// `d^2` differs from the limit by more than [`band`](Self::band) =
 /// `(E + 1) / K + 8 N EPSILON h / rcond`, where `E = (sum_{i<=j} U_i U_j + sum U_i) / 2` bounds
 /// the rounding of the coefficients, `1` the rounding of `t`, and the last term the `f64`
-/// gate's own error. For a 12-bit ADC baseline the band is about 1e-10 of the limit (the host
-/// test `int_gate_agreement` prints it).
+/// gate's own error. For a 12-bit ADC baseline the band is about 2e-14 of the limit (the host
+/// test `int_gate_agreement_on_a_dense_grid` prints it).
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct IntGate<const N: usize, const L: usize> {

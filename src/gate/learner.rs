@@ -6,9 +6,13 @@ use crate::math::{phase2_limit, LimitError, Real};
 use crate::moments::{Moments, Pivoted, Source};
 use crate::Baseline;
 
-/// The smallest learn-then-gate loop: the first `m` samples build a baseline (a first-sample
-/// pivot keeps large offsets precise), then every sample is judged against the exact Phase II
-/// limit for a baseline of `m` observations.
+/// The smallest learn-then-gate loop: the first `m` samples build a baseline, then every sample
+/// is judged against the exact Phase II limit for a baseline of `m` observations.
+///
+/// Precision: the learned covariance goes through a first-sample pivot and keeps its digits at
+/// any offset, but the gate computes `x - mean` in `T`. In `f32`, give samples already
+/// relative to a nominal when the offset is large against the spread (an offset of 1e4 with
+/// a spread of 1e-3 leaves no digits in `f32`).
 ///
 /// While learning, every sample gets [`Verdict::NotReady`]. If the baseline cannot be frozen
 /// at `m` (degenerate spread, say), the learner keeps collecting and tries again at each new

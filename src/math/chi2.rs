@@ -41,11 +41,14 @@ impl ChiSquare {
 
     /// Upper tail `Q(x) = P(X > x)`.
     pub fn upper<T: Real>(&self, x: T) -> T {
-        if x.is_finite() && x <= T::ZERO {
+        if x.is_nan() {
+            return x;
+        }
+        if x <= T::ZERO {
             return T::ONE;
         }
         if !x.is_finite() {
-            return if x > T::ZERO { T::ZERO } else { x };
+            return T::ZERO;
         }
         let half = T::from_f64(0.5);
         let e = (-(x * half)).exp();
@@ -75,11 +78,14 @@ impl ChiSquare {
 
     /// Lower tail `P(x) = P(X <= x)`.
     pub fn cdf<T: Real>(&self, x: T) -> T {
-        if !x.is_finite() {
-            return if x > T::ZERO { T::ONE } else { x };
+        if x.is_nan() {
+            return x;
         }
         if x <= T::ZERO {
             return T::ZERO;
+        }
+        if !x.is_finite() {
+            return T::ONE;
         }
         let a = self.half_df::<T>();
         let h = x * T::from_f64(0.5);
@@ -101,11 +107,21 @@ impl ChiSquare {
         }
     }
 
-    /// Density `x^{df/2-1} e^{-x/2} / (2^{df/2} Gamma(df/2))`; zero for `x <= 0` (and `df = 1`
-    /// gives infinity at zero, as the density does).
+    /// Density `x^{df/2-1} e^{-x/2} / (2^{df/2} Gamma(df/2))`: zero for `x < 0` and at
+    /// infinity; at `x = 0` it is infinite for `df = 1`, `1/2` for `df = 2`, zero above.
     pub fn pdf<T: Real>(&self, x: T) -> T {
-        if x.is_finite() && x < T::ZERO {
+        if x.is_nan() {
+            return x;
+        }
+        if x < T::ZERO || !x.is_finite() {
             return T::ZERO;
+        }
+        if x == T::ZERO {
+            return match self.df {
+                1 => T::from_f64(f64::INFINITY),
+                2 => T::from_f64(0.5),
+                _ => T::ZERO,
+            };
         }
         let a = self.half_df::<T>();
         let ln2 = T::from_f64(core::f64::consts::LN_2);
@@ -166,6 +182,15 @@ mod tests {
         assert!(ChiSquare::new(0).is_err() && ChiSquare::new(7).is_err());
         assert!(c.quantile_upper(0.0f64).is_err() && c.quantile_upper(1.0f32).is_err());
         assert!(c.quantile_upper(f64::NAN).is_err());
+        assert_eq!(
+            (c.upper(f64::NEG_INFINITY), c.cdf(f64::NEG_INFINITY)),
+            (1.0, 0.0)
+        );
+        assert_eq!((c.upper(f64::INFINITY), c.cdf(f64::INFINITY)), (0.0, 1.0));
+        assert_eq!(c.pdf(0.0f64), 0.5);
+        let c3 = ChiSquare::new(3).unwrap();
+        assert_eq!((c3.pdf(0.0f32), c3.pdf(f32::INFINITY)), (0.0, 0.0));
+        assert!(c3.upper(f64::NAN).is_nan() && c3.cdf(f64::NAN).is_nan());
     }
 
     #[test]

@@ -72,6 +72,9 @@ pub fn cholesky<T: Real, const N: usize>(a: &[[T; N]; N]) -> Option<([[T; N]; N]
 /// the diagonal scale, at most 30 sweeps (N <= 6 needs under 10). Absolute error about
 /// `N EPSILON max|lambda|`. NaN input gives NaN eigenvalues.
 pub fn symmetric_eigenvalues<T: Real, const N: usize>(a: &[[T; N]; N]) -> [T; N] {
+    if a.iter().flatten().any(|v| v.is_nan()) {
+        return [T::from_f64(f64::NAN); N];
+    }
     let mut m = *a;
     let half = T::from_f64(0.5);
     for _ in 0..30 {

@@ -3,16 +3,23 @@
 //! Nothing here holds state. Each function names its method and origin in its docs.
 
 mod beta;
+mod bvn;
 mod chi2;
 mod chi2_table;
 mod error;
+pub mod gauss_legendre;
 mod linalg;
+mod normal;
+mod precision;
 mod real;
 mod root;
 
 pub use beta::{phase1_limit, phase2_limit, phase2_tail, Beta, FDist};
+pub use bvn::{bvn_upper_f32, bvn_upper_f64};
 pub use chi2::ChiSquare;
 pub use chi2_table::{Chi2Table, CHI2_LIMITS};
 pub use error::LimitError;
 pub use linalg::{cholesky, det_symmetric_psd, symmetric_eigenvalues};
+pub use normal::{norm_cdf, norm_pdf, norm_quantile_upper, norm_sf};
+pub use precision::Precision;
 pub use real::Real;

@@ -41,6 +41,8 @@ pub trait Real:
     fn from_u32(n: u32) -> Self;
     /// `true` unless NaN or infinite.
     fn is_finite(self) -> bool;
+    /// `true` for NaN.
+    fn is_nan(self) -> bool;
     /// Absolute value.
     fn abs(self) -> Self;
     /// Square root (`libm`); NaN for negative input.
@@ -65,11 +67,18 @@ pub trait Real:
     fn ln_gamma(self) -> Self;
     /// Largest integer not above `self` (`libm::floor`).
     fn floor(self) -> Self;
+    /// Sine (`libm::sin`).
+    fn sin(self) -> Self;
+    /// Cosine (`libm::cos`).
+    fn cos(self) -> Self;
+    /// Arcsine (`libm::asin`), NaN outside [-1, 1].
+    fn asin(self) -> Self;
 }
 
 macro_rules! impl_real {
     ($t:ty, $sqrt:path, $atan2:path, $hypot:path, $fmax:path, $fmin:path, $fabs:path,
-     $exp:path, $ln:path, $ln1p:path, $erfc:path, $lgamma:path, $floor:path) => {
+     $exp:path, $ln:path, $ln1p:path, $erfc:path, $lgamma:path, $floor:path,
+     $sin:path, $cos:path, $asin:path) => {
         impl Real for $t {
             const ZERO: Self = 0.0;
             const ONE: Self = 1.0;
@@ -90,6 +99,10 @@ macro_rules! impl_real {
             #[inline]
             fn is_finite(self) -> bool {
                 <$t>::is_finite(self)
+            }
+            #[inline]
+            fn is_nan(self) -> bool {
+                <$t>::is_nan(self)
             }
             #[inline]
             fn abs(self) -> Self {
@@ -139,6 +152,18 @@ macro_rules! impl_real {
             fn floor(self) -> Self {
                 $floor(self)
             }
+            #[inline]
+            fn sin(self) -> Self {
+                $sin(self)
+            }
+            #[inline]
+            fn cos(self) -> Self {
+                $cos(self)
+            }
+            #[inline]
+            fn asin(self) -> Self {
+                $asin(self)
+            }
         }
     };
 }
@@ -156,7 +181,10 @@ impl_real!(
     libm::log1pf,
     libm::erfcf,
     libm::lgammaf,
-    libm::floorf
+    libm::floorf,
+    libm::sinf,
+    libm::cosf,
+    libm::asinf
 );
 impl_real!(
     f64,
@@ -171,7 +199,10 @@ impl_real!(
     libm::log1p,
     libm::erfc,
     libm::lgamma,
-    libm::floor
+    libm::floor,
+    libm::sin,
+    libm::cos,
+    libm::asin
 );
 
 #[cfg(test)]

@@ -8,7 +8,8 @@ use crate::math::Real;
 /// Update (Finch 2009, "Incremental calculation of weighted mean and variance"):
 /// `d = x - mean; mean += a d; S = (1 - a)(S + a d d')`. `S` stays positive semi-definite by
 /// construction (a sum of non-negative multiples of outer products). The first sample sets the
-/// mean and leaves `S` at zero. A sample `k` steps old has weight `a (1 - a)^k`.
+/// mean and leaves `S` at zero. After `n` samples, a sample `k` steps old has weight
+/// `a (1 - a)^k`, except the first sample, whose weight is `(1 - a)^(n - 1)`; they sum to 1.
 ///
 /// [`effective_window`](Self::effective_window) is `(2 - a) / a`: the number of equally
 /// weighted samples whose mean has the same variance as this exponentially weighted mean

@@ -71,7 +71,8 @@ impl<const N: usize, const L: usize> ExactMoments<N, L> {
         &self.prod
     }
 
-    /// Mean vector in `T` (the exact quotient rounded to `f64`, then to `T`).
+    /// Mean vector in `T`: the exact sum rounded to `f64`, divided by `n` (at most 1 ulp of
+    /// `f64` from the exact quotient), then rounded to `T`.
     pub fn mean<T: Real>(&self) -> Result<[T; N], EstimateError> {
         Ok(self.mean_f64()?.map(T::from_f64))
     }

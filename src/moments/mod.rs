@@ -51,6 +51,14 @@ impl<const N: usize, const L: usize> Shape<N, L> {
     );
 }
 
+/// Compile-time check of the dimension of a type without a packed triangle.
+pub(crate) struct Dim<const N: usize>;
+
+impl<const N: usize> Dim<N> {
+    /// A dimension outside 1..=6 is a build error.
+    pub(crate) const CHECK: () = assert!(N >= 1 && N <= 6, "dimension must be 1..=6");
+}
+
 /// The (i, j) pairs of the upper triangle, row by row, in storage order.
 pub(crate) fn pairs<const N: usize>() -> impl Iterator<Item = (usize, usize)> {
     (0..N).flat_map(|i| (i..N).map(move |j| (i, j)))

@@ -70,9 +70,15 @@ impl Source<i32> for i32 {
 }
 
 impl Source<f32> for i32 {
-    /// Exact while the difference is below 2^24 in size.
+    /// Exact: a difference of 2^24 or more in size, which `f32` would round, is
+    /// [`SampleError::Overflow`].
     fn offset(self, pivot: Self) -> Result<f32, SampleError> {
-        Ok((i64::from(self) - i64::from(pivot)) as f32)
+        let d = i64::from(self) - i64::from(pivot);
+        if d.abs() < (1 << 24) {
+            Ok(d as f32)
+        } else {
+            Err(SampleError::Overflow)
+        }
     }
     fn to_f64(self) -> f64 {
         f64::from(self)
@@ -116,9 +122,14 @@ where
         }
     }
 
-    /// Wraps an empty `inner`; the first sample pushed becomes the pivot.
-    pub fn first_sample(inner: A) -> Self {
-        Pivoted { pivot: None, inner }
+    /// Wraps `inner`; the first sample pushed becomes the pivot. An `inner` that already holds
+    /// samples has them taken as unshifted (pivot zero), so nothing it holds is lost.
+    pub fn first_sample(inner: A) -> Self
+    where
+        S: Default,
+    {
+        let pivot = (inner.count() > 0).then(|| [S::default(); N]);
+        Pivoted { pivot, inner }
     }
 
     /// Subtracts the pivot and pushes. Errors as [`Source::offset`] and the accumulator's

@@ -15,6 +15,7 @@ impl<T: Real, const N: usize> Covariance<T, N> {
     /// Wraps a matrix the caller vouches is symmetric positive semi-definite (every
     /// accumulator in this crate produces one, up to rounding).
     pub fn from_matrix(m: [[T; N]; N]) -> Self {
+        let () = super::Dim::<N>::CHECK;
         Covariance { m }
     }
 

@@ -93,7 +93,7 @@ impl<T: Real, const N: usize, const L: usize> Core<T, N, L> {
 /// Accuracy: the update works on deviations from the running mean, so the co-moment does not
 /// suffer the cancellation of the sum-of-squares formula; the mean itself is held in `T`, so
 /// samples with a large common offset should go through [`Pivoted`](crate::Pivoted). On the
-/// NIST StRD NumAcc sets the `f64` form keeps 9 or more digits of the standard deviation on
+/// NIST StRD NumAcc sets the `f64` form keeps more than 8 digits of the standard deviation on
 /// NumAcc4 and the `f32` form behind a pivot about 7 (host test `strd_numacc`).
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]

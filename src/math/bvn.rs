@@ -1,0 +1,185 @@
+//! The bivariate normal orthant probability `P(X > h, Y > k)` for standard margins and
+//! correlation `r`.
+
+use super::gauss_legendre::{GL10, GL12, GL20, GL5, GL5_CENTRE, GL6};
+use super::normal::{norm_cdf, norm_sf};
+use super::Real;
+
+const TWO_PI: f64 = core::f64::consts::TAU;
+
+/// The Gauss–Legendre rule (positive half) with the given half-set on [-1, 1].
+type Rule = &'static [(f64, f64)];
+
+/// `P(X > h, Y > k)` for a standard bivariate normal with correlation `r`, in double precision.
+///
+/// Method: Genz (2004), "Numerical computation of rectangular bivariate and trivariate normal
+/// and t probabilities", Statistics and Computing 14: 151-160. For `|r| < 0.925`, Gauss–Legendre
+/// on the Plackett integral after the substitution `r = sin(theta)`, with 6 / 12 / 20 points
+/// for `|r|` below 0.3 / 0.75 / above; for `|r| >= 0.925`, Drezner & Wesolowsky's expansion
+/// about `|r| = 1` with a corrected Gauss–Legendre remainder (20 points). Absolute error about
+/// 1e-15 (tested against mpmath to 1e-13). Infinite limits give the one-dimensional tails;
+/// `|r| = 1` the degenerate limits; NaN in gives NaN.
+pub fn bvn_upper_f64(h: f64, k: f64, r: f64) -> f64 {
+    let rule: Rule = if r.abs() < 0.3 {
+        &GL6
+    } else if r.abs() < 0.75 {
+        &GL12
+    } else {
+        &GL20
+    };
+    bvn_upper(h, k, r, rule, 0.925)
+}
+
+/// `P(X > h, Y > k)` in single precision.
+///
+/// Method: Drezner & Wesolowsky (1990), J. Statist. Comput. Simul. 35: Gauss–Legendre with
+/// 5 points for `|r| < 0.8` (here in Genz's `asin` form, which needs no square root per node),
+/// and the same high-`|r|` expansion as [`bvn_upper_f64`] with 10 points above. Absolute error
+/// below 2e-6 (tested against mpmath).
+pub fn bvn_upper_f32(h: f32, k: f32, r: f32) -> f32 {
+    if r.abs() < 0.8 {
+        bvn_upper_low5(h, k, r)
+    } else {
+        bvn_upper(h, k, r, &GL10, 0.8)
+    }
+}
+
+/// The 5-point low-`|r|` rule (odd order: centre node included).
+fn bvn_upper_low5<T: Real>(h: T, k: T, r: T) -> T {
+    if let Some(p) = infinite_limits(h, k) {
+        return p;
+    }
+    let half = T::from_f64(0.5);
+    let hk = h * k;
+    let hs = (h * h + k * k) * half;
+    let asr = r.asin() * half;
+    let node = |x: T| {
+        let sn = (asr * x).sin();
+        ((sn * hk - hs) / (T::ONE - sn * sn)).exp()
+    };
+    let mut s = T::from_f64(GL5_CENTRE) * node(T::ONE);
+    for &(x, w) in GL5.iter() {
+        let (x, w) = (T::from_f64(x), T::from_f64(w));
+        s += w * (node(T::ONE - x) + node(T::ONE + x));
+    }
+    clamp01(s * asr / T::from_f64(TWO_PI) + norm_sf(h) * norm_sf(k))
+}
+
+fn clamp01<T: Real>(p: T) -> T {
+    p.max(T::ZERO).min(T::ONE)
+}
+
+/// `Some` for an infinite limit: the orthant is empty or one-dimensional.
+fn infinite_limits<T: Real>(h: T, k: T) -> Option<T> {
+    let inf = T::from_f64(f64::INFINITY);
+    if h == inf || k == inf {
+        Some(T::ZERO)
+    } else if h == -inf {
+        Some(if k == -inf { T::ONE } else { norm_sf(k) })
+    } else if k == -inf {
+        Some(norm_sf(h))
+    } else {
+        None
+    }
+}
+
+/// The shared body: Plackett integral for `|r| < split`, high-`|r|` expansion above.
+fn bvn_upper<T: Real>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
+    if let Some(p) = infinite_limits(h, k) {
+        return p;
+    }
+    if h.is_nan() || k.is_nan() || r.is_nan() {
+        return h + k + r;
+    }
+    let half = T::from_f64(0.5);
+    let one = T::ONE;
+    let two_pi = T::from_f64(TWO_PI);
+    let mut hk = h * k;
+    if r.abs() < T::from_f64(split) {
+        // Genz (2004), eq. (3): sum over the symmetric nodes 1 -+ x of sin(asr (1 -+ x)).
+        let hs = (h * h + k * k) * half;
+        let asr = r.asin() * half;
+        let node = |x: T| {
+            let sn = (asr * x).sin();
+            ((sn * hk - hs) / (one - sn * sn)).exp()
+        };
+        let mut s = T::ZERO;
+        for &(x, w) in rule.iter() {
+            let (x, w) = (T::from_f64(x), T::from_f64(w));
+            s += w * (node(one - x) + node(one + x));
+        }
+        return clamp01(s * asr / two_pi + norm_sf(h) * norm_sf(k));
+    }
+    // Genz (2004), section 2.2: expansion about |r| = 1 (after Drezner & Wesolowsky 1990).
+    let mut kk = k;
+    if r < T::ZERO {
+        kk = -kk;
+        hk = -hk;
+    }
+    let mut bvn = T::ZERO;
+    if r.abs() < one {
+        let as_ = (one - r) * (one + r);
+        let mut a = as_.sqrt();
+        let bs = (h - kk) * (h - kk);
+        let c = (T::from_f64(4.0) - hk) / T::from_f64(8.0);
+        let d = (T::from_f64(12.0) - hk) / T::from_f64(32.0);
+        let lim = T::from_f64(-100.0);
+        let asr = -(bs / as_ + hk) * half;
+        if asr > lim {
+            bvn = a
+                * asr.exp()
+                * (one - c * (bs - as_) * (one - d * bs) / T::from_f64(3.0) + c * d * as_ * as_);
+        }
+        if hk > lim {
+            let b = bs.sqrt();
+            let sp = T::from_f64(TWO_PI.sqrt()) * norm_cdf(-b / a);
+            bvn -= (-hk * half).exp() * sp * b * (one - c * bs * (one - d * bs) / T::from_f64(3.0));
+        }
+        a *= half;
+        let mut s = T::ZERO;
+        for &(x, w) in rule.iter() {
+            let w = T::from_f64(w);
+            for sign in [-one, one] {
+                let xn = T::from_f64(x) * sign + one;
+                let xs = (a * xn) * (a * xn);
+                let asr = -(bs / xs + hk) * half;
+                if asr > lim {
+                    let sp = one + c * xs * (one + T::from_f64(5.0) * d * xs);
+                    let rs = (one - xs).sqrt();
+                    let ep = (-(hk * half) * xs / ((one + rs) * (one + rs))).exp() / rs;
+                    s += w * asr.exp() * (sp - ep);
+                }
+            }
+        }
+        bvn = (a * s - bvn) / two_pi;
+    }
+    if r > T::ZERO {
+        bvn += norm_sf(h.max(kk));
+    } else if h >= kk {
+        bvn = -bvn;
+    } else {
+        let l = if h < T::ZERO {
+            norm_cdf(kk) - norm_cdf(h)
+        } else {
+            norm_sf(h) - norm_sf(kk)
+        };
+        bvn = l - bvn;
+    }
+    clamp01(bvn)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn sheppard_orthant_formula() {
+        // Sheppard (1899): P(X > 0, Y > 0) = 1/4 + asin(r) / (2 pi), exact.
+        for r in [-0.99f64, -0.9, -0.5, 0.0, 0.2, 0.5, 0.8, 0.93, 0.999] {
+            let want = 0.25 + r.asin() / TWO_PI;
+            assert!((bvn_upper_f64(0.0, 0.0, r) - want).abs() < 1e-15, "r {r}");
+            let got = bvn_upper_f32(0.0, 0.0, r as f32);
+            assert!((f64::from(got) - want).abs() < 2e-6, "f32 r {r}");
+        }
+    }
+}
