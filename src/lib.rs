@@ -11,6 +11,7 @@ pub mod gate;
 mod gaussian;
 pub mod math;
 pub mod moments;
+pub mod zone;
 
 pub use gate::{Distance, Gate, IntGate, IntGate2, Learner, Limit, Reason, Verdict};
 pub use gaussian::{Baseline, FreezeError};
@@ -20,6 +21,10 @@ pub use moments::{
     EwMoments3, ExactMoments, ExactMoments1, ExactMoments2, ExactMoments3, ExactMoments4,
     ExactMoments5, ExactMoments6, Merge, Moments, Moments1, Moments2, Moments3, Moments4, Moments5,
     Moments6, Pivoted, SampleError, Source, WeightedMoments, WeightedMoments2,
+};
+pub use zone::{
+    coverage_radius, Bounds, Capability, CircleZone, EllipseZone, IntCircle, IntEllipse, IntRect,
+    IntZone, RectZone, Yield, Zone, ZoneError,
 };
 
 // The state budgets promised in the docs, checked at build time on every target.

@@ -55,10 +55,42 @@ impl<const N: usize, const L: usize> IntGate<N, L> {
     /// [`FreezeError::OutOfRange`] if the mean does not fit `i32` or the gate is so wide
     /// (reach above about 2^29 counts) that no scale keeps the form within `i64`.
     pub fn from_gate(gate: &Gate<f64, N>) -> Result<Self, FreezeError> {
-        let () = Shape::<N, L>::CHECK;
         let base = gate.baseline();
-        let h = gate.limit();
-        let mean = *base.mean();
+        let cov = base.covariance();
+        let mut spread = [0.0; N];
+        for (i, s) in spread.iter_mut().enumerate() {
+            *s = cov.matrix()[i][i];
+        }
+        Self::from_form(
+            base.mean(),
+            &base.precision(),
+            &spread,
+            gate.limit(),
+            base.reciprocal_condition(),
+        )
+    }
+
+    /// The integer test of a general ellipsoid `(x - centre)' P (x - centre) <= h`, given its
+    /// matrix `P`, the diagonal of `P^-1` (`spread`: the squared half-widths of the ellipsoid's
+    /// bounding box are `h spread_i`), and the reciprocal condition of `P`, which enters the
+    /// band. [`from_gate`](Self::from_gate) calls it with the inverse covariance; a tolerance
+    /// ellipse calls it with its own shape matrix and `h = 1`.
+    pub fn from_form(
+        centre: &[f64; N],
+        prec: &[[f64; N]; N],
+        spread: &[f64; N],
+        h: f64,
+        rcond: f64,
+    ) -> Result<Self, FreezeError> {
+        let () = Shape::<N, L>::CHECK;
+        let finite = centre
+            .iter()
+            .chain(prec.iter().flatten())
+            .chain(spread.iter());
+        if !(finite.clone().all(|v| v.is_finite()) && h.is_finite() && h > 0.0 && rcond > 0.0) {
+            return Err(FreezeError::NotFinite);
+        }
+        let mean = *centre;
         let mut pivot = [0i32; N];
         let mut f = [0.0f64; N];
         for i in 0..N {
@@ -69,12 +101,10 @@ impl<const N: usize, const L: usize> IntGate<N, L> {
             pivot[i] = r as i32;
             f[i] = mean[i] - r;
         }
-        let prec = base.precision();
-        let cov = base.covariance();
         let mut reach = [0i64; N];
         let mut reach_f = [0.0f64; N];
         for i in 0..N {
-            let r = libm::ceil(libm::sqrt(h * cov.matrix()[i][i]) + 0.5) + 1.0;
+            let r = libm::ceil(libm::sqrt(h * spread[i]) + 0.5) + 1.0;
             if !(r < 536_870_912.0) {
                 return Err(FreezeError::OutOfRange);
             }
@@ -127,7 +157,6 @@ impl<const N: usize, const L: usize> IntGate<N, L> {
             *l = round_to_i64(v * scale)?;
         }
         let threshold = round_to_i64(libm::floor(rest * scale))?;
-        let rcond = base.reciprocal_condition();
         let band = (err + 1.0) / scale + 8.0 * N as f64 * f64::EPSILON * h / rcond;
         Ok(IntGate {
             pivot,

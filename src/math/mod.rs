@@ -12,7 +12,7 @@ mod linalg;
 mod normal;
 mod precision;
 mod real;
-mod root;
+pub(crate) mod root;
 
 pub use beta::{phase1_limit, phase2_limit, phase2_tail, Beta, FDist};
 pub use bvn::{bvn_upper_f32, bvn_upper_f64};

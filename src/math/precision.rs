@@ -33,6 +33,6 @@ impl Precision for f32 {
         bvn_upper_f32(h, k, r)
     }
     const RULE: &'static [(f64, f64)] = &GL10;
-    const PANELS: u32 = 2;
+    const PANELS: u32 = 3;
     const WINDOW: f64 = 6.8;
 }

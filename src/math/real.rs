@@ -5,7 +5,7 @@
 //! `hypot`). NaN and infinity propagate exactly as in `libm`.
 
 use core::fmt::{Debug, Display};
-use core::ops::{Add, AddAssign, Div, Mul, MulAssign, Neg, Sub, SubAssign};
+use core::ops::{Add, AddAssign, Div, DivAssign, Mul, MulAssign, Neg, Sub, SubAssign};
 
 /// A floating-point scalar: `f32` (single precision, the hot path on an FPU core) or `f64`
 /// (freeze and report time, host reference).
@@ -24,6 +24,7 @@ pub trait Real:
     + AddAssign
     + SubAssign
     + MulAssign
+    + DivAssign
     + 'static
 {
     /// Additive identity.

@@ -66,3 +66,46 @@ fn bisect<T: Real>(lo: T, hi: T, two: T) -> T {
         (lo + hi) / two
     }
 }
+
+/// Root of a continuous `f` on `[lo, hi]` where `f(lo)` and `f(hi)` differ in sign, by the
+/// Illinois variant of regula falsi (Dowell & Jarratt 1971): superlinear, never leaves the
+/// bracket. Stops when the bracket is below `4 EPSILON` of its size or after 200 steps
+/// ([`LimitError::NoConvergence`]); [`LimitError::BadParameter`] if the signs do not differ.
+pub fn solve_bracketed<T: Real>(mut lo: T, mut hi: T, f: impl Fn(T) -> T) -> Result<T, LimitError> {
+    let two = T::ONE + T::ONE;
+    let (mut flo, mut fhi) = (f(lo), f(hi));
+    if flo == T::ZERO {
+        return Ok(lo);
+    }
+    if fhi == T::ZERO {
+        return Ok(hi);
+    }
+    if (flo < T::ZERO) == (fhi < T::ZERO) || flo.is_nan() || fhi.is_nan() {
+        return Err(LimitError::BadParameter);
+    }
+    let mut side = 0i8;
+    for _ in 0..200 {
+        let x = (lo * fhi - hi * flo) / (fhi - flo);
+        let x = if x > lo && x < hi { x } else { (lo + hi) / two };
+        let fx = f(x);
+        if fx == T::ZERO || (hi - lo).abs() <= T::EPSILON * two * two * hi.abs().max(lo.abs()) {
+            return Ok(x);
+        }
+        if (fx < T::ZERO) == (flo < T::ZERO) {
+            lo = x;
+            flo = fx;
+            if side == -1 {
+                fhi /= two;
+            }
+            side = -1;
+        } else {
+            hi = x;
+            fhi = fx;
+            if side == 1 {
+                flo /= two;
+            }
+            side = 1;
+        }
+    }
+    Err(LimitError::NoConvergence)
+}

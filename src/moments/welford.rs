@@ -77,7 +77,7 @@ impl<T: Real, const N: usize, const L: usize> Core<T, N, L> {
         let mut m: [[T; N]; N] = unpack(&self.comoment);
         for row in m.iter_mut() {
             for v in row.iter_mut() {
-                *v = *v / divisor;
+                *v /= divisor;
             }
         }
         Covariance::from_matrix(m)
