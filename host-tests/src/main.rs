@@ -23,6 +23,8 @@ struct Cli {
 enum Command {
     /// Control limits for a Mahalanobis gate of dimension P at false-alarm rate A.
     Limits(cli::limits::Args),
+    /// What-if yield of a tolerance zone for a process mean and covariance.
+    Zone(cli::zone::Args),
 }
 
 fn main() -> ExitCode {
@@ -48,6 +50,7 @@ fn main() -> ExitCode {
     };
     let result = match parsed.command {
         Command::Limits(a) => cli::limits::run(&a),
+        Command::Zone(a) => cli::zone::run(&a),
     };
     match result {
         Ok(json) => {

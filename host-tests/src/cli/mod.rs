@@ -1,6 +1,7 @@
 //! The commands of the `covgate` binary, one module each, testable without a process.
 
 pub mod limits;
+pub mod zone;
 
 use std::process::ExitCode;
 

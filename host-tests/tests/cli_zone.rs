@@ -1,0 +1,130 @@
+//! The `covgate zone` command as a user runs it.
+
+use std::process::Command;
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_covgate"))
+        .args(args)
+        .output()
+        .expect("the covgate binary runs");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8(out.stdout).unwrap(),
+        String::from_utf8(out.stderr).unwrap(),
+    )
+}
+
+fn json(args: &[&str]) -> serde_json::Value {
+    let (code, stdout, stderr) = run(args);
+    assert_eq!(code, 0, "{args:?}: {stderr}");
+    serde_json::from_str(stdout.trim()).unwrap()
+}
+
+#[test]
+fn zone_prints_yield_ppm_and_bounds() {
+    // Rayleigh (exact): circular normal sigma 1 centred on the circle, radius 2:
+    // outside = exp(-2).
+    let v = json(&[
+        "zone", "--mean", "0,0", "--cov", "1,0,1", "--circle", "0,0,4",
+    ]);
+    let out = (-2.0f64).exp();
+    assert!((v["outside"].as_f64().unwrap() - out).abs() < 1e-14);
+    assert!((v["inside"].as_f64().unwrap() - (1.0 - out)).abs() < 1e-14);
+    assert!((v["ppm_outside"].as_f64().unwrap() - out * 1e6).abs() < 1e-7);
+    let (lo, hi) = (
+        v["lower_bound"].as_f64().unwrap(),
+        v["upper_bound"].as_f64().unwrap(),
+    );
+    assert!(lo <= 1.0 - out && 1.0 - out <= hi);
+    // A one-sided rectangle, independent axes: product of normal intervals. Upper limit in y
+    // absent: P(X < 3) * P(-3 < Y) = Phi(3)^2; Phi(3) = 0.998650101968370 (common practice,
+    // 15 digits).
+    let v = json(&[
+        "zone",
+        "--mean",
+        "0,0",
+        "--cov",
+        "1,0,1",
+        "--rect",
+        "-inf,3,-3,inf",
+    ]);
+    let p = 0.998_650_101_968_370_f64;
+    assert!((v["inside"].as_f64().unwrap() - p * p).abs() < 1e-14);
+    let v32 = json(&[
+        "zone",
+        "--mean",
+        "0,0",
+        "--cov",
+        "1,0,1",
+        "--rect",
+        "-inf,3,-3,inf",
+        "--precision",
+        "f32",
+    ]);
+    assert!((v32["inside"].as_f64().unwrap() - p * p).abs() < 2e-6);
+    assert_eq!(v32["precision"], "f32");
+    // Ellipse equal to the circle above.
+    let v = json(&[
+        "zone",
+        "--mean",
+        "0,0",
+        "--cov",
+        "1,0,1",
+        "--ellipse",
+        "0,0,2,2,30",
+    ]);
+    assert!((v["outside"].as_f64().unwrap() - out).abs() < 1e-14);
+}
+
+#[test]
+fn zone_errors_are_one_line_exit_two() {
+    for args in [
+        &[
+            "zone", "--mean", "0,0", "--cov", "1,2,1", "--circle", "0,0,1",
+        ][..],
+        &[
+            "zone", "--mean", "0,0", "--cov", "1,0,1", "--rect", "1,0,0,1",
+        ],
+        &[
+            "zone", "--mean", "0,x", "--cov", "1,0,1", "--circle", "0,0,1",
+        ],
+        &[
+            "zone", "--mean", "0,0,0", "--cov", "1,0,1", "--circle", "0,0,1",
+        ],
+        &["zone", "--mean", "0,0", "--cov", "1,0,1"],
+        &[
+            "zone", "--mean", "0,0", "--cov", "1,0,1", "--circle", "0,0,-1",
+        ],
+        &[
+            "zone", "--mean", "0,0", "--cov", "1,0,1", "--circle", "0,0,inf",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--ellipse",
+            "0,0,1,0,10",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--circle",
+            "0,0,1",
+            "--precision",
+            "f16",
+        ],
+        &[
+            "zone", "--mean", "nan,0", "--cov", "1,0,1", "--circle", "0,0,1",
+        ],
+    ] {
+        let (code, stdout, stderr) = run(args);
+        assert_eq!(code, 2, "{args:?}: {stderr}");
+        assert!(stdout.is_empty());
+        assert_eq!(stderr.trim_end().lines().count(), 1, "{args:?}: {stderr:?}");
+    }
+}
