@@ -7,7 +7,8 @@
 //!     cargo run -p covgate-host --example drilling_cell
 
 use covgate::{
-    Baseline, ExactMoments2, Gate, IntGate2, Learner, Limit, Merge, Moments2, Pivoted, Verdict,
+    Baseline, CircleZone, ExactMoments2, Gate, IntGate2, IntZone, Learner, Limit, Merge, Moments2,
+    Pivoted, Verdict, Zone,
 };
 
 /// xorshift64* and Box-Muller: a seeded, dependency-free normal generator for the demo.
@@ -179,4 +180,25 @@ fn main() {
         new_holes.len(),
         int_gate.band()
     );
+
+    // Expected yield against the positional tolerance: diameter 50 um at true position.
+    println!("\npositional tolerance, diameter 50 um at true position:");
+    let zone = Zone::Circle(CircleZone::new([0.0, 0.0], 50.0).expect("positive diameter"));
+    let int_zone = IntZone::from_zone(&zone).expect("integer centre");
+    for (name, station, parts) in [("spindle A", &station_a, &a), ("spindle B", &station_b, &b)] {
+        let mean = station.mean_f64().expect("samples");
+        let cov = station
+            .inner()
+            .sample_covariance::<f64>()
+            .expect("two or more");
+        let y = zone.probability(&mean, &cov).expect("positive definite");
+        let cap = y.capability();
+        let bad = parts.iter().filter(|x| !int_zone.contains(x)).count();
+        println!(
+            "  {name}: predicted {:.0} ppm nonconforming (equivalent index {:.2}); {bad} of {} demo parts outside",
+            cap.ppm,
+            cap.index,
+            parts.len()
+        );
+    }
 }
