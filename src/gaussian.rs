@@ -192,6 +192,33 @@ impl<T: Real, const N: usize> Baseline<T, N> {
         z
     }
 
+    /// `L v`: a whitened (or chart) vector back in data units, relative to the mean.
+    #[inline]
+    pub fn unwhiten(&self, v: &[T; N]) -> [T; N] {
+        let mut out = [T::ZERO; N];
+        for i in 0..N {
+            let mut s = T::ZERO;
+            for k in 0..=i {
+                s += self.chol[i][k] * v[k];
+            }
+            out[i] = s;
+        }
+        out
+    }
+
+    /// Standard deviation of each axis, `sqrt(C_ii)` (the row norms of `L`).
+    pub fn std_devs(&self) -> [T; N] {
+        let mut out = [T::ZERO; N];
+        for i in 0..N {
+            let mut s = T::ZERO;
+            for k in 0..=i {
+                s += self.chol[i][k] * self.chol[i][k];
+            }
+            out[i] = s.sqrt();
+        }
+        out
+    }
+
     /// Mahalanobis distance squared of `x` from the baseline. NaN in gives NaN out.
     #[inline]
     pub fn mahalanobis2(&self, x: &[T; N]) -> T {

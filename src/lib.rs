@@ -11,9 +11,11 @@ pub mod gate;
 mod gaussian;
 pub mod math;
 pub mod moments;
+pub mod signal;
+pub mod watch;
 pub mod zone;
 
-pub use gate::{Distance, Gate, IntGate, IntGate2, Learner, Limit, Reason, Verdict};
+pub use gate::{Chart, Distance, Gate, IntGate, IntGate2, Learner, Limit, Reason, Verdict};
 pub use gaussian::{Baseline, FreezeError};
 pub use math::CHI2_LIMITS;
 pub use moments::{
@@ -22,6 +24,7 @@ pub use moments::{
     ExactMoments5, ExactMoments6, Merge, Moments, Moments1, Moments2, Moments3, Moments4, Moments5,
     Moments6, Pivoted, SampleError, Source, WeightedMoments, WeightedMoments2,
 };
+pub use watch::{Alarm, Monitor, Screening, Step, Watch, WatchConfig, WatchError};
 pub use zone::{
     coverage_radius, Bounds, Capability, CircleZone, EllipseZone, IntCircle, IntEllipse, IntRect,
     IntZone, RectZone, Yield, Zone, ZoneError,

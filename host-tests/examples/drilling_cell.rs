@@ -141,9 +141,17 @@ fn main() {
     ];
     for x in new_holes {
         let verdict = match learner.push(x) {
-            Verdict::Go(d) => format!("go     d^2 = {:6.2}  tail p = {:.4}", d.d2, d.tail),
+            Verdict::Go(d) => format!(
+                "go     d^2 = {:6.2}  tail p = {:.4}",
+                d.d2,
+                d.tail.unwrap_or(f32::NAN)
+            ),
             Verdict::NoGo(covgate::Reason::OutsideGate(d)) => {
-                format!("NO-GO  d^2 = {:6.2}  tail p = {:.2e}", d.d2, d.tail)
+                format!(
+                    "NO-GO  d^2 = {:6.2}  tail p = {:.2e}",
+                    d.d2,
+                    d.tail.unwrap_or(f32::NAN)
+                )
             }
             other => format!("{other:?}"),
         };

@@ -9,7 +9,7 @@ use covgate::*;
 
 #[test]
 fn state_sizes() {
-    let rows: Vec<(&str, usize)> = vec![
+    let mut rows: Vec<(&str, usize)> = vec![
         ("Moments2<f32>", size_of::<Moments2<f32>>()),
         ("Moments2<f64>", size_of::<Moments2<f64>>()),
         ("Moments3<f32>", size_of::<Moments3<f32>>()),
@@ -35,12 +35,30 @@ fn state_sizes() {
             size_of::<Pivoted<ExactMoments2, i32, 2>>(),
         ),
     ];
+    let watch_rows: Vec<(&str, usize)> = vec![
+        ("Gate<f32, 2>", size_of::<Gate<f32, 2>>()),
+        ("Baseline<f32, 2>", size_of::<Baseline<f32, 2>>()),
+        ("IntGate2", size_of::<IntGate2>()),
+        ("Zone<f32>", size_of::<Zone<f32>>()),
+        (
+            "Monitor<f32, 2> (gate, zone, all charts)",
+            size_of::<Monitor<f32, 2>>(),
+        ),
+        ("Monitor<f64, 2>", size_of::<Monitor<f64, 2>>()),
+        ("Monitor<f32, 6>", size_of::<Monitor<f32, 6>>()),
+        (
+            "Watch<f32, 2, 32> (with a 32-sample buffer)",
+            size_of::<Watch<f32, 2, 32>>(),
+        ),
+    ];
+    rows.extend(watch_rows);
     println!("\nstate bytes (size_of, host)");
     for (name, bytes) in &rows {
-        println!("{name:<30} {bytes:>4}");
+        println!("{name:<44} {bytes:>4}");
     }
     assert!(size_of::<Moments2<f32>>() <= 24);
     assert!(size_of::<ExactMoments2>() <= 48);
+    assert!(size_of::<Monitor<f32, 2>>() <= 200);
     // The N-D formulas stated in the moments module docs.
     for (n, l, f32_bytes, exact_bytes) in [
         (

@@ -88,15 +88,35 @@ impl<T: Real> Limit<T> {
     }
 }
 
-/// How far a sample lies from the baseline: `d^2` and its tail probability under the
-/// gate's limit distribution.
+/// How far a sample lies from the baseline: `d^2` and, where it was computed, its tail
+/// probability under the gate's limit distribution.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Distance<T> {
     /// Mahalanobis distance squared.
     pub d2: T,
-    /// Probability of a distance at least this large from the in-control process.
-    pub tail: T,
+    /// Probability of a distance at least this large from the in-control process:
+    /// `Some` from [`Gate::verdict`]; `None` from the monitor's per-sample path, which skips
+    /// the incomplete beta (call [`Limit::tail`] when it is wanted).
+    pub tail: Option<T>,
+}
+
+/// Which check raised a process alarm.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub enum Chart {
+    /// Gate exceedances under the k-of-n rule.
+    Gate,
+    /// Multivariate EWMA.
+    Mewma,
+    /// Crosier's multivariate CUSUM.
+    Mcusum,
+    /// The EWMA of `d^2` (dispersion check).
+    Dispersion,
+    /// Hotelling's T^2 of a subgroup mean.
+    Subgroup,
+    /// The monitor's own state failed its consistency check (fail-safe).
+    Fault,
 }
 
 /// Why a sample is no-go.
@@ -105,6 +125,10 @@ pub struct Distance<T> {
 pub enum Reason<T> {
     /// `d^2` above the gate's limit.
     OutsideGate(Distance<T>),
+    /// Outside the tolerance zone.
+    OutsideZone(Distance<T>),
+    /// The process is in alarm (latched until acknowledged): no part passes.
+    Alarm(Chart),
     /// The sample itself was refused (NaN, infinity, overflow): fail-safe no-go.
     InvalidSample(SampleError),
 }
@@ -180,10 +204,9 @@ impl<T: Real, const N: usize> Gate<T, N> {
         if !d2.is_finite() {
             return Verdict::NoGo(Reason::InvalidSample(SampleError::Overflow));
         }
-        // N is 1..=6 for any gate that was built, so the tail cannot fail; keep the
-        // fail-safe reading (tail 0) rather than a panic path.
+        // N is 1..=6 for any gate that was built, so the tail cannot fail (`None` if it did).
         let p = N as u32;
-        let tail = self.kind.tail(p, d2).unwrap_or(T::ZERO);
+        let tail = self.kind.tail(p, d2).ok();
         let dist = Distance { d2, tail };
         if d2 <= self.limit {
             Verdict::Go(dist)
@@ -208,7 +231,7 @@ mod tests {
             panic!("inside")
         };
         assert_eq!(d.d2, 2.0);
-        assert!((d.tail - (-1.0f64).exp()).abs() < 1e-15);
+        assert!((d.tail.unwrap() - (-1.0f64).exp()).abs() < 1e-15);
         assert!(matches!(
             g.verdict(&[3.0, 2.0]),
             Verdict::NoGo(Reason::OutsideGate(_))

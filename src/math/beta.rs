@@ -200,15 +200,30 @@ impl<T: Real> FDist<T> {
 /// (m <= p), [`LimitError::BadProbability`]. Cost: one F quantile, a few hundred `T`
 /// operations times the iteration count; meant for the host or for freeze time on a device.
 pub fn phase2_limit<T: Real>(p: u32, m: u32, alpha: T) -> Result<T, LimitError> {
+    subgroup_limit(p, m, 1, alpha)
+}
+
+/// Phase II limit of `T^2 = n (xbar - mean)' S^-1 (xbar - mean)` for the mean `xbar` of a
+/// subgroup of `n` new observations, with mean and covariance `S` estimated from `m`
+/// individual observations: `UCL = p (m + n)(m - 1) / (m (m - p)) * F(1 - alpha; p, m - p)`.
+///
+/// Derivation (standard Hotelling argument): `xbar - mean` has covariance `(1/n + 1/m) Sigma`
+/// and is independent of `S`, so `(nm / (n + m)) (xbar - mean)' S^-1 (xbar - mean)` is
+/// `p (m - 1) / (m - p) F(p, m - p)`. With `n = 1` this is [`phase2_limit`] (NIST 6.5.4.3).
+/// Errors as [`phase2_limit`]; `n = 0` is [`LimitError::BadParameter`].
+pub fn subgroup_limit<T: Real>(p: u32, m: u32, n: u32, alpha: T) -> Result<T, LimitError> {
     if !(1..=6).contains(&p) {
         return Err(LimitError::BadDimension);
     }
     if m <= p {
         return Err(LimitError::BaselineTooSmall);
     }
-    let (pt, mt) = (T::from_u32(p), T::from_u32(m));
+    if n == 0 {
+        return Err(LimitError::BadParameter);
+    }
+    let (pt, mt, nt) = (T::from_u32(p), T::from_u32(m), T::from_u32(n));
     let f = FDist::new(pt, mt - pt)?.quantile_upper(alpha)?;
-    Ok(pt * (mt + T::ONE) * (mt - T::ONE) / (mt * (mt - pt)) * f)
+    Ok(pt * (mt + nt) * (mt - T::ONE) / (mt * (mt - pt)) * f)
 }
 
 /// The matching tail probability of a Phase II T^2 value `t2`: `P(F(p, m - p) > t2 / c)` with

@@ -14,7 +14,7 @@ mod precision;
 mod real;
 pub(crate) mod root;
 
-pub use beta::{phase1_limit, phase2_limit, phase2_tail, Beta, FDist};
+pub use beta::{phase1_limit, phase2_limit, phase2_tail, subgroup_limit, Beta, FDist};
 pub use bvn::{bvn_upper_f32, bvn_upper_f64};
 pub use chi2::ChiSquare;
 pub use chi2_table::{Chi2Table, CHI2_LIMITS};
