@@ -3,6 +3,7 @@
 //!
 //! Nothing in [`reference`] calls the code it checks.
 
+pub mod arl;
 pub mod cli;
 pub mod compare;
 pub mod fixture;

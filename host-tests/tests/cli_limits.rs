@@ -44,6 +44,34 @@ fn limits_prints_the_chi_square_and_phase_limits() {
 }
 
 #[test]
+fn chart_limits_for_a_target_arl() {
+    // Prabhu & Runger (1997), from memory, confirmed by watch_checks: p = 2, lambda = 0.1,
+    // ARL0 200 -> h = 8.64.
+    let (code, stdout, stderr) = run(&[
+        "limits", "--chart", "mewma", "--dim", "2", "--lambda", "0.1", "--arl0", "200",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let v: serde_json::Value = serde_json::from_str(stdout.trim()).unwrap();
+    assert!((v["h"].as_f64().unwrap() / 8.64 - 1.0).abs() < 0.03);
+    assert!((v["arl0"].as_f64().unwrap() / 200.0 - 1.0).abs() < 0.001);
+    assert!(v["method"].as_str().unwrap().contains("Markov chain"));
+    // Crosier (1988), from memory, confirmed by watch_checks: p = 2, k = 0.5 -> h = 5.5.
+    let (code, stdout, stderr) = run(&[
+        "limits", "--chart", "mcusum", "--dim", "2", "--k", "0.5", "--arl0", "200", "--runs",
+        "4000",
+    ]);
+    assert_eq!(code, 0, "{stderr}");
+    let v: serde_json::Value = serde_json::from_str(stdout.trim()).unwrap();
+    assert!((v["h"].as_f64().unwrap() / 5.5 - 1.0).abs() < 0.03, "{v}");
+    let se = v["arl0_se"].as_f64().unwrap();
+    assert!(
+        (v["arl0"].as_f64().unwrap() - 200.0).abs() < 4.0 * se + 4.0,
+        "{v}"
+    );
+    assert!(v["method"].as_str().unwrap().contains("simulation"));
+}
+
+#[test]
 fn bad_arguments_give_one_line_and_exit_two() {
     for args in [
         &["limits", "--dim", "7", "--alpha", "0.01"][..],
@@ -56,6 +84,15 @@ fn bad_arguments_give_one_line_and_exit_two() {
         &["limits", "--dim", "two", "--alpha", "0.01"],
         &["limits", "--alpha", "0.01"],
         &["limits", "--dim", "2", "--alpha", "0.01", "--bogus"],
+        &["limits", "--dim", "2"],
+        &["limits", "--chart", "mewma", "--dim", "2", "--arl0", "200"],
+        &[
+            "limits", "--chart", "mewma", "--dim", "2", "--lambda", "1.5", "--arl0", "200",
+        ],
+        &[
+            "limits", "--chart", "mcusum", "--dim", "2", "--k", "0.5", "--arl0", "1",
+        ],
+        &["limits", "--chart", "ewma3", "--dim", "2", "--arl0", "200"],
     ] {
         let (code, stdout, stderr) = run(args);
         assert_eq!(code, 2, "{args:?}: {stderr}");

@@ -129,6 +129,11 @@ impl<T: Real, const N: usize> Mcusum<T, N> {
     pub(crate) fn is_sane(&self) -> bool {
         self.s.iter().all(|v| v.is_finite())
     }
+
+    #[cfg(test)]
+    pub(crate) fn corrupt_for_test(&mut self) {
+        self.s = [T::from_f64(f64::NAN); N];
+    }
 }
 
 /// A dispersion check: an EWMA of `d^2`, `E_i = lambda d^2_i + (1 - lambda) E_{i-1}`,

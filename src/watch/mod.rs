@@ -600,3 +600,93 @@ fn estimate<T: Real, const N: usize>(
     }
     Some((mean, Covariance::from_matrix(c)))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn cfg() -> WatchConfig<f64, 2> {
+        let mut c = WatchConfig::new(10, 0.0027);
+        c.mewma = Some((0.2, 9.65, false));
+        c.mcusum = Some((0.5, 5.5));
+        c
+    }
+
+    fn baseline_samples() -> [[f64; 2]; 10] {
+        let mut out = [[0.0; 2]; 10];
+        for (k, o) in out.iter_mut().enumerate() {
+            let t = k as f64;
+            *o = [(t * 1.7).sin(), (t * 2.3).cos() + 0.3 * (t * 1.7).sin()];
+        }
+        out
+    }
+
+    #[test]
+    fn learns_arms_alarms_acknowledges_relearns() {
+        let mut w = Watch::<f64, 2, 16>::new(cfg()).unwrap();
+        // A refused sample while learning does not count.
+        assert!(matches!(
+            w.push([f64::NAN, 0.0]).verdict,
+            Verdict::NoGo(Reason::InvalidSample(_))
+        ));
+        for x in baseline_samples() {
+            assert_eq!(w.push(x).verdict, Verdict::NotReady);
+        }
+        assert!(w.monitor().is_some(), "{:?}", w.last_error());
+        assert!(w.push([0.1, 0.2]).verdict.is_go());
+        // A refused sample while armed changes nothing.
+        let before = *w.monitor().unwrap();
+        assert!(matches!(
+            w.push([0.0, f64::INFINITY]).verdict,
+            Verdict::NoGo(Reason::InvalidSample(_))
+        ));
+        assert_eq!(*w.monitor().unwrap(), before);
+        // A far sample: outside the gate, and the MEWMA (first in line after the rule) fires.
+        let s = w.push([40.0, 40.0]);
+        let a = s.alarm.expect("an alarm");
+        assert_eq!(s.verdict, Verdict::NoGo(Reason::Alarm(a.chart)));
+        assert!(w.push([0.1, 0.2]).verdict == Verdict::NoGo(Reason::Alarm(a.chart)));
+        w.acknowledge();
+        assert!(w.push([0.1, 0.2]).verdict.is_go());
+        w.relearn();
+        assert_eq!(w.push([0.1, 0.2]).verdict, Verdict::NotReady);
+    }
+
+    #[test]
+    fn a_corrupt_chart_state_fails_safe() {
+        let mut w = Watch::<f64, 2, 16>::new(cfg()).unwrap();
+        for x in baseline_samples() {
+            w.push(x);
+        }
+        let m = w.monitor.as_mut().unwrap();
+        if let Some(c) = &mut m.mcusum {
+            c.corrupt_for_test();
+        }
+        let s = w.push([0.1, 0.2]);
+        assert_eq!(s.verdict, Verdict::NoGo(Reason::Alarm(Chart::Fault)));
+    }
+
+    #[test]
+    fn refuses_to_arm_on_a_stuck_reading() {
+        let mut w = Watch::<f32, 2, 16>::new(WatchConfig::new(8, 0.01)).unwrap();
+        for _ in 0..8 {
+            w.push([2.0, 3.0]);
+        }
+        assert!(w.monitor().is_none());
+        assert_eq!(
+            w.last_error(),
+            Some(WatchError::Freeze(FreezeError::Degenerate))
+        );
+        let mut c = WatchConfig::new(8, 0.01);
+        c.resolution = [0.1, 0.1];
+        let mut w = Watch::<f32, 2, 16>::new(c).unwrap();
+        for _ in 0..8 {
+            w.push([2.0, 3.0]);
+        }
+        assert!(w.monitor().is_some());
+        assert!(
+            Watch::<f32, 2, 4>::new(WatchConfig::new(8, 0.01)).is_err(),
+            "buffer too small"
+        );
+    }
+}
