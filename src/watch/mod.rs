@@ -653,6 +653,31 @@ mod tests {
     }
 
     #[test]
+    fn two_of_three_gate_exceedances_raise_a_gate_alarm() {
+        let mut c = WatchConfig::new(10, 0.0027);
+        c.gate_rule = Some((2, 3));
+        let mut w = Watch::<f64, 2, 16>::new(c).unwrap();
+        for x in baseline_samples() {
+            w.push(x);
+        }
+        let far = [6.0, -6.0];
+        assert!(matches!(
+            w.push(far).verdict,
+            Verdict::NoGo(Reason::OutsideGate(_))
+        ));
+        assert!(w.push([0.1, 0.2]).alarm.is_none());
+        let b = *w.monitor().unwrap().gate().baseline();
+        let s = w.push(far);
+        let a = s.alarm.unwrap();
+        assert_eq!(a.chart, Chart::Gate);
+        // The gate alarm's shift is the sample's own deviation in standard deviations.
+        for i in 0..2 {
+            let want = (far[i] - b.mean()[i]) / b.std_devs()[i];
+            assert!((a.shift[i] - want).abs() < 1e-12, "{:?} vs {want}", a.shift);
+        }
+    }
+
+    #[test]
     fn a_corrupt_chart_state_fails_safe() {
         let mut w = Watch::<f64, 2, 16>::new(cfg()).unwrap();
         for x in baseline_samples() {
