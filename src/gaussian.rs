@@ -123,6 +123,42 @@ impl<T: Real, const N: usize> Baseline<T, N> {
         })
     }
 
+    /// Rebuilds a baseline from its mean and lower Cholesky factor (a decoded snapshot):
+    /// the upper triangle of `l` must be zero and its diagonal positive; then the same checks
+    /// as [`new`](Self::new). The result equals the baseline the factor came from, bit for bit.
+    pub fn from_factor(mean: [T; N], l: [[T; N]; N]) -> Result<Self, FreezeError> {
+        let () = crate::moments::Dim::<N>::CHECK;
+        let finite = mean.iter().chain(l.iter().flatten()).all(|v| v.is_finite());
+        if !finite {
+            return Err(FreezeError::NotFinite);
+        }
+        let mut inv_diag = [T::ZERO; N];
+        for i in 0..N {
+            for j in (i + 1)..N {
+                if l[i][j] != T::ZERO {
+                    return Err(FreezeError::Degenerate);
+                }
+            }
+            if !(l[i][i] > T::ZERO) {
+                return Err(FreezeError::Degenerate);
+            }
+            inv_diag[i] = T::ONE / l[i][i];
+        }
+        let b = Baseline {
+            mean,
+            chol: l,
+            inv_diag,
+        };
+        let ev = symmetric_eigenvalues(b.covariance().matrix());
+        if !(ev[0] > T::ZERO) {
+            return Err(FreezeError::Degenerate);
+        }
+        if ev[0] < ev[N - 1] * T::EPSILON.sqrt() {
+            return Err(FreezeError::IllConditioned);
+        }
+        Ok(b)
+    }
+
     /// The mean vector.
     pub fn mean(&self) -> &[T; N] {
         &self.mean

@@ -11,7 +11,9 @@ pub mod gate;
 mod gaussian;
 pub mod math;
 pub mod moments;
+pub mod report;
 pub mod signal;
+pub mod snapshot;
 pub mod watch;
 pub mod zone;
 
@@ -24,6 +26,8 @@ pub use moments::{
     ExactMoments5, ExactMoments6, Merge, Moments, Moments1, Moments2, Moments3, Moments4, Moments5,
     Moments6, Pivoted, SampleError, Source, WeightedMoments, WeightedMoments2,
 };
+pub use report::{ReportFrame, ReportFrame2};
+pub use snapshot::{SlotStore, SnapshotError};
 pub use watch::{Alarm, Monitor, Screening, Step, Watch, WatchConfig, WatchError};
 pub use zone::{
     coverage_radius, Bounds, Capability, CircleZone, EllipseZone, IntCircle, IntEllipse, IntRect,

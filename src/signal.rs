@@ -2,10 +2,13 @@
 //! that drives them through `embedded_hal::digital::OutputPin`.
 //!
 //! Fail-safe by design: only [`Verdict::Go`] activates the go line; every other verdict
-//! (no-go for any reason, not ready) activates the no-go line. Both lines are never active
-//! together: on a change the line being released is released first, so for an instant both
-//! are inactive, which downstream wiring must read as no-go. A pin error leaves the adapter
-//! trying to reach the safe state (go released, no-go active) and is reported.
+//! (no-go for any reason, not ready) activates the no-go line. On a change the line being
+//! released is released first, so for an instant both are inactive, which downstream wiring
+//! must read as no-go. After a pin error the physical state of the lines is not known (a go
+//! line that failed to release may still be active while no-go is driven active): downstream
+//! wiring must let no-go win when both are asserted. The adapter then latches a fault: it
+//! keeps driving the safe state (go released, no-go active) and refuses to drive go again
+//! until [`GoNoGo::clear_fault`] succeeds.
 //!
 //! This drives signals, not a safety function: wiring and the use of these lines follow local
 //! codes and licensed practice (see the README).
@@ -56,15 +59,17 @@ pub enum Polarity {
 mod hal {
     use super::{Lines, Polarity};
     use crate::Verdict;
-    use embedded_hal::digital::OutputPin;
+    use embedded_hal::digital::{ErrorType, OutputPin};
 
-    /// Which pin failed.
+    /// Which pin failed, or that a fault is latched.
     #[derive(Clone, Copy, Debug, PartialEq, Eq)]
     pub enum OutputError<G, N> {
         /// The go pin returned an error.
         Go(G),
         /// The no-go pin returned an error.
         NoGo(N),
+        /// An earlier pin error latched the safe state; call [`GoNoGo::clear_fault`].
+        Latched,
     }
 
     impl<G: core::fmt::Debug, N: core::fmt::Debug> core::fmt::Display for OutputError<G, N> {
@@ -72,6 +77,7 @@ mod hal {
             match self {
                 OutputError::Go(e) => write!(f, "go line: {e:?}"),
                 OutputError::NoGo(e) => write!(f, "no-go line: {e:?}"),
+                OutputError::Latched => f.write_str("output fault latched"),
             }
         }
     }
@@ -81,25 +87,42 @@ mod hal {
         go: G,
         nogo: N,
         polarity: Polarity,
-        state: Lines,
+        /// `None` while a fault is latched: the physical state is not known.
+        state: Option<Lines>,
     }
 
+    /// What [`GoNoGo::new`] hands back when it could not drive the safe state: the error and
+    /// both pins.
+    pub type Refused<G, N> = (
+        OutputError<<G as ErrorType>::Error, <N as ErrorType>::Error>,
+        G,
+        N,
+    );
+
     impl<G: OutputPin, N: OutputPin> GoNoGo<G, N> {
-        /// Takes the pins and drives the safe state at once (go released, no-go active).
-        pub fn new(
-            go: G,
-            nogo: N,
-            polarity: Polarity,
-        ) -> Result<Self, OutputError<G::Error, N::Error>> {
+        /// Takes the pins and drives the safe state at once (go released, no-go active). Both
+        /// writes are attempted even if the first fails; on an error the pins come back with it.
+        pub fn new(go: G, nogo: N, polarity: Polarity) -> Result<Self, Refused<G, N>> {
             let mut s = GoNoGo {
                 go,
                 nogo,
                 polarity,
-                state: Lines::SAFE,
+                state: None,
             };
-            s.set_go(false)?;
-            s.set_nogo(true)?;
-            Ok(s)
+            match s.drive_safe() {
+                Ok(()) => {
+                    s.state = Some(Lines::SAFE);
+                    Ok(s)
+                }
+                Err(e) => Err((e, s.go, s.nogo)),
+            }
+        }
+
+        /// Releases go and activates no-go, attempting both; the first error is returned.
+        fn drive_safe(&mut self) -> Result<(), OutputError<G::Error, N::Error>> {
+            let a = self.set_go(false);
+            let b = self.set_nogo(true);
+            a.and(b)
         }
 
         fn level(&self, active: bool) -> bool {
@@ -124,9 +147,14 @@ mod hal {
             r.map_err(OutputError::NoGo)
         }
 
-        /// Drives the lines for a verdict: release first, then activate. On a pin error, tries
-        /// the safe state and returns the first error.
+        /// Drives the lines for a verdict: release first, then activate. On a pin error, drives
+        /// the safe state (best effort), latches the fault and returns the error; while latched,
+        /// every call drives the safe state and returns [`OutputError::Latched`].
         pub fn apply<T>(&mut self, v: &Verdict<T>) -> Result<(), OutputError<G::Error, N::Error>> {
+            if self.state.is_none() {
+                let _ = self.drive_safe();
+                return Err(OutputError::Latched);
+            }
             let want = Lines::for_verdict(v);
             let r = if want.go {
                 self.set_nogo(false).and_then(|()| self.set_go(true))
@@ -135,20 +163,27 @@ mod hal {
             };
             match r {
                 Ok(()) => {
-                    self.state = want;
+                    self.state = Some(want);
                     Ok(())
                 }
                 Err(e) => {
-                    let _ = self.set_go(false);
-                    let _ = self.set_nogo(true);
-                    self.state = Lines::SAFE;
+                    let _ = self.drive_safe();
+                    self.state = None;
                     Err(e)
                 }
             }
         }
 
-        /// The lines last driven successfully (or the safe state after an error).
-        pub fn lines(&self) -> Lines {
+        /// Retries the safe state; on success the fault is cleared and `apply` works again.
+        pub fn clear_fault(&mut self) -> Result<(), OutputError<G::Error, N::Error>> {
+            self.drive_safe()?;
+            self.state = Some(Lines::SAFE);
+            Ok(())
+        }
+
+        /// The lines last driven successfully; `None` while a fault is latched (the physical
+        /// state is not known).
+        pub fn lines(&self) -> Option<Lines> {
             self.state
         }
 
@@ -160,4 +195,4 @@ mod hal {
 }
 
 #[cfg(feature = "embedded-hal")]
-pub use hal::{GoNoGo, OutputError};
+pub use hal::{GoNoGo, OutputError, Refused};

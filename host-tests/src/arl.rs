@@ -97,16 +97,31 @@ fn solve(mut a: Vec<Vec<f64>>, mut b: Vec<f64>) -> Vec<f64> {
     x
 }
 
-/// The `h` giving in-control ARL `target` for a function `arl(h)` increasing in `h`:
-/// bracket by doubling, then bisection on `ln ARL` to a relative width of `tol`.
-pub fn limit_for(target: f64, mut lo: f64, mut hi: f64, tol: f64, arl: impl Fn(f64) -> f64) -> f64 {
+/// The `h` giving in-control ARL `target` for a function `arl(h)` increasing in `h`, with
+/// `lo` the smallest valid limit: bracket by doubling `hi` (at most 40 times), then bisection
+/// to a relative width of `tol`. `Err` when the target lies below `arl(lo)` or beyond reach.
+pub fn limit_for(
+    target: f64,
+    lo: f64,
+    mut hi: f64,
+    tol: f64,
+    arl: impl Fn(f64) -> f64,
+) -> Result<f64, String> {
+    let at_lo = arl(lo);
+    if at_lo > target {
+        return Err(format!(
+            "target ARL {target} is below {at_lo:.3}, the ARL at the smallest valid limit {lo}"
+        ));
+    }
+    let mut lo = lo;
+    let mut doublings = 0;
     while arl(hi) < target {
         lo = hi;
         hi *= 2.0;
-    }
-    while arl(lo) > target && lo > 1e-6 {
-        hi = lo;
-        lo /= 2.0;
+        doublings += 1;
+        if doublings > 40 {
+            return Err(format!("target ARL {target} is out of reach"));
+        }
     }
     for _ in 0..200 {
         let mid = 0.5 * (lo + hi);
@@ -119,7 +134,7 @@ pub fn limit_for(target: f64, mut lo: f64, mut hi: f64, tol: f64, arl: impl Fn(f
             break;
         }
     }
-    0.5 * (lo + hi)
+    Ok(0.5 * (lo + hi))
 }
 
 /// Simulated run lengths: mean and its standard error over `runs` runs, each capped at

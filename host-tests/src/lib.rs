@@ -7,5 +7,6 @@ pub mod arl;
 pub mod cli;
 pub mod compare;
 pub mod fixture;
+pub mod flash;
 pub mod reference;
 pub mod seeded;

@@ -25,6 +25,8 @@ enum Command {
     Limits(cli::limits::Args),
     /// What-if yield of a tolerance zone for a process mean and covariance.
     Zone(cli::zone::Args),
+    /// Decode report frames from files and merge them per node and across the fleet.
+    Fleet(cli::fleet::Args),
 }
 
 fn main() -> ExitCode {
@@ -51,6 +53,7 @@ fn main() -> ExitCode {
     let result = match parsed.command {
         Command::Limits(a) => cli::limits::run(&a),
         Command::Zone(a) => cli::zone::run(&a),
+        Command::Fleet(a) => cli::fleet::run(&a),
     };
     match result {
         Ok(json) => {

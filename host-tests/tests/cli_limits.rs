@@ -93,6 +93,19 @@ fn bad_arguments_give_one_line_and_exit_two() {
             "limits", "--chart", "mcusum", "--dim", "2", "--k", "0.5", "--arl0", "1",
         ],
         &["limits", "--chart", "ewma3", "--dim", "2", "--arl0", "200"],
+        &[
+            "limits",
+            "--chart",
+            "dispersion",
+            "--dim",
+            "2",
+            "--lambda",
+            "1",
+            "--arl0",
+            "2",
+            "--runs",
+            "200",
+        ],
     ] {
         let (code, stdout, stderr) = run(args);
         assert_eq!(code, 2, "{args:?}: {stderr}");

@@ -10,9 +10,9 @@ use covgate::{Chart, Reason, Verdict, Watch};
 use covgate_host::arl::{self, dispersion_chart, mcusum_chart, mewma_chart, simulate};
 use covgate_host::seeded::Rng;
 
-/// Within `rel` of `want`.
+/// Within `rel` of `want` (the shared tolerance helper).
 fn within(got: f64, want: f64, rel: f64) -> bool {
-    ((got - want) / want).abs() <= rel
+    covgate_host::compare::Tol::rel(rel).accepts(got, want)
 }
 
 #[test]
@@ -31,13 +31,16 @@ fn mewma_limits_match_the_published_tables() {
     ];
     println!("\nMEWMA, p = 2, ARL0 200: lambda, published h, computed h, chain ARL at published h");
     for (lambda, h_pub) in table {
-        let h = arl::limit_for(200.0, 1.0, 20.0, 1e-7, |h| {
+        let h = arl::limit_for(200.0, 1e-3, 20.0, 1e-7, |h| {
             arl::mewma_arl0(2, lambda, h, 300)
-        });
+        })
+        .unwrap();
         let at_pub = arl::mewma_arl0(2, lambda, h_pub, 300);
         println!("  {lambda:<5} {h_pub:<6} {h:.3}  {at_pub:.1}");
-        assert!(within(h, h_pub, 0.03), "lambda {lambda}: h {h} vs {h_pub}");
-        assert!(within(at_pub, 200.0, 0.03), "lambda {lambda}: ARL {at_pub}");
+        // The issue asks for 3 %; the chain agrees to 0.1 % (two-decimal table), so hold 0.2 %
+        // on h and 1 % on the ARL.
+        assert!(within(h, h_pub, 0.002), "lambda {lambda}: h {h} vs {h_pub}");
+        assert!(within(at_pub, 200.0, 0.01), "lambda {lambda}: ARL {at_pub}");
     }
     // Lowry, Woodall, Champ & Rigdon (1992), Technometrics 34(1): p = 2, lambda = 0.1,
     // h = 8.66 gives an in-control ARL of about 200 (from memory).

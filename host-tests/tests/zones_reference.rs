@@ -427,6 +427,13 @@ fn bounds_bracket_and_precisions_agree() {
             }
         };
         let y32 = z32.probability(&m32, &c32).unwrap();
+        // The f32 bounds bracket the f32 probability up to f32 rounding (a one-sided rectangle
+        // can make a bound equal to the exact value, so allow 1e-6).
+        let b32 = z32.bounds(&m32, &c32).unwrap();
+        prop_assert!(
+            b32.inside_lower <= y32.inside + 1e-6 && y32.inside <= b32.inside_upper + 1e-6,
+            "{b32:?} {y32:?}"
+        );
         // 2e-6 for the method plus the effect of rounding the parameters to f32 (about 1e-6
         // at most for these shapes: density times a relative change of 6e-8 of sizes up to 20
         // standard deviations).

@@ -46,6 +46,9 @@ pub fn bvn_upper_f32(h: f32, k: f32, r: f32) -> f32 {
 
 /// The 5-point low-`|r|` rule (odd order: centre node included).
 fn bvn_upper_low5<T: Real>(h: T, k: T, r: T) -> T {
+    if h.is_nan() || k.is_nan() || r.is_nan() {
+        return h + k + r;
+    }
     if let Some(p) = infinite_limits(h, k) {
         return p;
     }
@@ -85,11 +88,11 @@ fn infinite_limits<T: Real>(h: T, k: T) -> Option<T> {
 
 /// The shared body: Plackett integral for `|r| < split`, high-`|r|` expansion above.
 fn bvn_upper<T: Real>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
-    if let Some(p) = infinite_limits(h, k) {
-        return p;
-    }
     if h.is_nan() || k.is_nan() || r.is_nan() {
         return h + k + r;
+    }
+    if let Some(p) = infinite_limits(h, k) {
+        return p;
     }
     let half = T::from_f64(0.5);
     let one = T::ONE;
@@ -122,7 +125,7 @@ fn bvn_upper<T: Real>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
         let mut a = as_.sqrt();
         let bs = (h - kk) * (h - kk);
         let c = (T::from_f64(4.0) - hk) / T::from_f64(8.0);
-        let d = (T::from_f64(12.0) - hk) / T::from_f64(32.0);
+        let d = (T::from_f64(12.0) - hk) / T::from_f64(80.0);
         let lim = T::from_f64(-100.0);
         let asr = -(bs / as_ + hk) * half;
         if asr > lim {
@@ -181,5 +184,8 @@ mod tests {
             let got = bvn_upper_f32(0.0, 0.0, r as f32);
             assert!((f64::from(got) - want).abs() < 2e-6, "f32 r {r}");
         }
+        assert!(bvn_upper_f64(f64::NAN, 0.0, 0.5).is_nan());
+        assert!(bvn_upper_f32(f32::NAN, 0.0, 0.5).is_nan());
+        assert!(bvn_upper_f64(f64::INFINITY, 0.0, f64::NAN).is_nan());
     }
 }

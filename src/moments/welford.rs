@@ -135,6 +135,28 @@ impl<T: Real, const N: usize, const L: usize> Moments<T, N, L> {
         Ok(())
     }
 
+    /// Rebuilds an accumulator from its parts (a decoded report frame, say): the count, the
+    /// mean and the packed co-moment. [`SampleError::NotFinite`] for a non-finite value,
+    /// [`SampleError::BadWeight`] for a negative variance term or a non-empty summary of zero
+    /// samples.
+    pub fn from_parts(count: u32, mean: [T; N], comoment: [T; L]) -> Result<Self, SampleError> {
+        let () = Shape::<N, L>::CHECK;
+        if !(all_finite(&mean) && all_finite(&comoment)) {
+            return Err(SampleError::NotFinite);
+        }
+        let diag_ok = pairs::<N>()
+            .zip(comoment.iter())
+            .all(|((i, j), &c)| i != j || c >= T::ZERO);
+        let empty_ok = count > 0 || mean.iter().chain(comoment.iter()).all(|&v| v == T::ZERO);
+        if !(diag_ok && empty_ok) {
+            return Err(SampleError::BadWeight);
+        }
+        Ok(Moments {
+            count,
+            core: Core { mean, comoment },
+        })
+    }
+
     /// Number of samples taken.
     pub fn count(&self) -> u32 {
         self.count

@@ -59,6 +59,28 @@ impl<T: Real, const N: usize> Mewma<T, N> {
         self.limit
     }
 
+    /// The smoothing constant.
+    pub fn lambda(&self) -> T {
+        self.lambda
+    }
+
+    /// Whether the exact time-varying covariance is used.
+    pub fn is_exact(&self) -> bool {
+        self.exact
+    }
+
+    /// The current statistic `T^2` (zero before the first sample).
+    pub fn statistic(&self) -> T {
+        let two = T::ONE + T::ONE;
+        let c = self.lambda * (T::ONE - self.decay) / (two - self.lambda);
+        let s = self.z.iter().fold(T::ZERO, |a, &v| a + v * v);
+        if c > T::ZERO {
+            s / c
+        } else {
+            T::ZERO
+        }
+    }
+
     /// The smoothed vector `Z` (whitened units).
     pub fn vector(&self) -> &[T; N] {
         &self.z
@@ -121,6 +143,16 @@ impl<T: Real, const N: usize> Mcusum<T, N> {
         self.limit
     }
 
+    /// The reference value `k`.
+    pub fn k(&self) -> T {
+        self.k
+    }
+
+    /// The current statistic `Y = |S|`.
+    pub fn statistic(&self) -> T {
+        self.s.iter().fold(T::ZERO, |a, &v| a + v * v).sqrt()
+    }
+
     /// The cumulative vector `S` (whitened units).
     pub fn vector(&self) -> &[T; N] {
         &self.s
@@ -174,6 +206,16 @@ impl<T: Real> Dispersion<T> {
         let pt = T::from_u32(p);
         let two = T::ONE + T::ONE;
         pt + width * (two * pt * lambda / (two - lambda)).sqrt()
+    }
+
+    /// The smoothing constant.
+    pub fn lambda(&self) -> T {
+        self.lambda
+    }
+
+    /// The current value `E`.
+    pub fn statistic(&self) -> T {
+        self.e
     }
 
     /// Restarts at the in-control mean.

@@ -169,15 +169,15 @@ pub struct Step<T, const N: usize> {
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Monitor<T, const N: usize> {
-    gate: Gate<T, N>,
-    zone: Option<Zone<T>>,
-    mewma: Option<Mewma<T, N>>,
-    mcusum: Option<Mcusum<T, N>>,
-    dispersion: Option<Dispersion<T>>,
-    subgroup: Option<Subgroup<T, N>>,
-    rule: Option<KofN>,
-    alarm: Option<Alarm<T, N>>,
-    samples: u32,
+    pub(crate) gate: Gate<T, N>,
+    pub(crate) zone: Option<Zone<T>>,
+    pub(crate) mewma: Option<Mewma<T, N>>,
+    pub(crate) mcusum: Option<Mcusum<T, N>>,
+    pub(crate) dispersion: Option<Dispersion<T>>,
+    pub(crate) subgroup: Option<Subgroup<T, N>>,
+    pub(crate) rule: Option<KofN>,
+    pub(crate) alarm: Option<Alarm<T, N>>,
+    pub(crate) samples: u32,
 }
 
 impl<T: Precision, const N: usize> Monitor<T, N> {
@@ -236,9 +236,29 @@ impl<T: Precision, const N: usize> Monitor<T, N> {
         })
     }
 
+    /// Samples judged since arming or the last acknowledgement.
+    pub fn samples(&self) -> u32 {
+        self.samples
+    }
+
+    /// The tolerance zone, if any.
+    pub fn zone(&self) -> Option<&Zone<T>> {
+        self.zone.as_ref()
+    }
+
     /// The gate (baseline and limit).
     pub fn gate(&self) -> &Gate<T, N> {
         &self.gate
+    }
+
+    /// The current statistics of the MEWMA, the MCUSUM and the dispersion check (`None` for a
+    /// chart that is off).
+    pub fn chart_statistics(&self) -> [Option<T>; 3] {
+        [
+            self.mewma.as_ref().map(|c| c.statistic()),
+            self.mcusum.as_ref().map(|c| c.statistic()),
+            self.dispersion.as_ref().map(|c| c.statistic()),
+        ]
     }
 
     /// The latched alarm, if any.

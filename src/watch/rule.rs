@@ -28,6 +28,11 @@ impl KofN {
         self.bits.count_ones() >= u32::from(self.k)
     }
 
+    /// `(k, n)`.
+    pub fn k_of_n(&self) -> (u8, u8) {
+        (self.k, self.n)
+    }
+
     /// Forgets the window.
     pub fn reset(&mut self) {
         self.bits = 0;

@@ -58,13 +58,13 @@ impl IntCircle {
         })
     }
 
-    /// From a float circle whose centre is an integer point and whose diameter is below 2^31;
-    /// otherwise [`ZoneError::NotIntegral`].
+    /// From a float circle whose centre is an integer point and whose diameter is below 2^26
+    /// (so that `floor(diameter^2)` is exact in `f64`); otherwise [`ZoneError::NotIntegral`].
     pub fn from_zone(z: &CircleZone<f64>) -> Result<Self, ZoneError> {
         let c = z.centre();
         let d = z.diameter();
         let ok = |v: f64| v == libm::round(v) && v.abs() <= f64::from(i32::MAX);
-        if !(ok(c[0]) && ok(c[1]) && d < 2_147_483_648.0) {
+        if !(ok(c[0]) && ok(c[1]) && d < 67_108_864.0) {
             return Err(ZoneError::NotIntegral);
         }
         // floor of the exact square: d*d = p + e exactly (fma), so floor(d^2) is floor(p) - 1

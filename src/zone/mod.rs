@@ -174,6 +174,19 @@ impl<T: Real> EllipseZone<T> {
         })
     }
 
+    /// As [`new`](Self::new), with the rotation given as its cosine and sine (a decoded
+    /// snapshot); [`ZoneError::Degenerate`] unless `cos^2 + sin^2` is 1 within 1e-5.
+    pub fn from_rotation(centre: [T; 2], a: T, b: T, cos: T, sin: T) -> Result<Self, ZoneError> {
+        let z = Self::new(centre, a, b, T::ZERO)?;
+        if !(cos.is_finite() && sin.is_finite()) {
+            return Err(ZoneError::NotFinite);
+        }
+        if !((cos * cos + sin * sin - T::ONE).abs() <= T::from_f64(1e-5)) {
+            return Err(ZoneError::Degenerate);
+        }
+        Ok(EllipseZone { cos, sin, ..z })
+    }
+
     /// The centre.
     pub fn centre(&self) -> [T; 2] {
         self.centre

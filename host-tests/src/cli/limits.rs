@@ -118,9 +118,9 @@ fn chart(a: &Args) -> Result<serde_json::Value, String> {
             if !(lambda > 0.0 && lambda <= 1.0) {
                 return Err(format!("--lambda {lambda} must lie in (0, 1]"));
             }
-            let h = arl::limit_for(target, 1.0, 20.0, 1e-7, |h| {
+            let h = arl::limit_for(target, 1e-3, 20.0, 1e-7, |h| {
                 arl::mewma_arl0(p, lambda, h, STATES)
-            });
+            })?;
             Ok(json!({
                 "chart": "mewma", "dim": p, "lambda": lambda, "arl0_target": target,
                 "h": h, "arl0": arl::mewma_arl0(p, lambda, h, STATES),
@@ -159,7 +159,7 @@ fn chart(a: &Args) -> Result<serde_json::Value, String> {
             };
             let h = arl::limit_for(target, floor, floor + 10.0, 1e-4, |h| {
                 sim(h, SEARCH_RUNS, a.seed).0
-            });
+            })?;
             let (arl0, se) = sim(h, a.runs, a.seed ^ 0x5EED);
             let mut out = json!({
                 "chart": name, "dim": p, "arl0_target": target, "h": h,

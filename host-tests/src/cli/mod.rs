@@ -1,5 +1,6 @@
 //! The commands of the `covgate` binary, one module each, testable without a process.
 
+pub mod fleet;
 pub mod limits;
 pub mod zone;
 
