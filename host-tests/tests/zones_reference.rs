@@ -25,8 +25,9 @@ fn bivariate_normal_matches_mpmath() {
         let want: f64 = row.get(file, 3);
         let got = bvn_upper_f64(h, k, r);
         let at = format!("{file}:{} h {h} k {k} r {r}", row.line);
-        // f64 target 1e-13 absolute (Genz 2004 reports about 1e-15).
-        Tol::abs(1e-13).check(&at, got, want).unwrap();
+        // f64: the issue asks 1e-13 absolute; Genz (2004) reports about 1e-15 and the points
+        // just above |r| = 0.925 caught a wrong constant at 2e-13, so hold 1e-14.
+        Tol::abs(1e-14).check(&at, got, want).unwrap();
         w64 = w64.max((got - want).abs());
         // f32: 2e-6 absolute; the f32 inputs are the rounded h, k, r, whose own effect on the
         // probability is below 1e-7 here (density times a relative rounding of 6e-8).
