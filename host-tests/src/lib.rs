@@ -1,12 +1,19 @@
 //! Host side of covgate: an independent `f64` reference, one shared comparison helper, a
-//! seeded property-test runner, and (later) the command-line tool.
+//! seeded property-test runner, run-length tools, the replay engine and figure, and the
+//! `covgate` command-line tool.
 //!
 //! Nothing in [`reference`] calls the code it checks.
+
+// `!(x <= limit)` is deliberate: it counts NaN as outside.
+#![allow(clippy::neg_cmp_op_on_partial_ord)]
 
 pub mod arl;
 pub mod cli;
 pub mod compare;
+pub mod demo;
+pub mod figure;
 pub mod fixture;
 pub mod flash;
 pub mod reference;
+pub mod replay;
 pub mod seeded;

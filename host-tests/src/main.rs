@@ -27,6 +27,10 @@ enum Command {
     Zone(cli::zone::Args),
     /// Decode report frames from files and merge them per node and across the fleet.
     Fleet(cli::fleet::Args),
+    /// Replay a recorded capture through the device's code; write verdicts, summary, figure.
+    Replay(cli::replay::Args),
+    /// Run the bundled demo scenarios end to end into a folder.
+    Demo(cli::demo::Args),
 }
 
 fn main() -> ExitCode {
@@ -54,6 +58,8 @@ fn main() -> ExitCode {
         Command::Limits(a) => cli::limits::run(&a),
         Command::Zone(a) => cli::zone::run(&a),
         Command::Fleet(a) => cli::fleet::run(&a),
+        Command::Replay(a) => cli::replay::run(&a),
+        Command::Demo(a) => cli::demo::run(&a),
     };
     match result {
         Ok(json) => {

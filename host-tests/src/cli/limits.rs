@@ -7,7 +7,7 @@ use crate::arl;
 use crate::seeded::Rng;
 
 /// Arguments of `covgate limits`.
-#[derive(clap::Args, Debug)]
+#[derive(clap::Args, Debug, Default)]
 pub struct Args {
     /// Which limit: the Mahalanobis gate / Hotelling T^2 (t2), or a drift chart.
     #[arg(long, value_name = "t2|mewma|mcusum|dispersion", default_value = "t2")]

@@ -1,7 +1,9 @@
 //! The commands of the `covgate` binary, one module each, testable without a process.
 
+pub mod demo;
 pub mod fleet;
 pub mod limits;
+pub mod replay;
 pub mod zone;
 
 use std::process::ExitCode;
