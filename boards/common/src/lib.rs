@@ -1,0 +1,319 @@
+//! The firmware body shared by every board: on-target checks of the core, the drilling-cell
+//! demo capture replayed through the device code, and instruction counts per operation.
+//!
+//! Output is plain lines on the semihosting console:
+//! `check NAME ok|FAIL detail`, `replay-int ...`, `replay-f32 ...`, `count OP INSTRUCTIONS`,
+//! and finally `done FAILURES`. The host test `firmware` parses them.
+
+#![no_std]
+#![forbid(unsafe_code)]
+
+use core::fmt::Write;
+use core::hint::black_box;
+
+use covgate::math::bvn_upper_f32;
+use covgate::{
+    Baseline, CircleZone, Covariance, ExactMoments2, Gate, IntGate2, IntZone, Limit, Moments2,
+    Pivoted, RectZone, Verdict, Watch, WatchConfig, Zone,
+};
+
+/// A free-running down-counter (SysTick's current value, 24 bits).
+pub trait Ticks {
+    /// The counter now.
+    fn now(&mut self) -> u32;
+    /// Runs a loop of known length: about `n` instructions.
+    fn known_loop(&mut self, n: u32);
+}
+
+const CAPTURE: &str = include_str!("../../../fixtures/demo/drilling-cell.csv");
+
+fn check<W: Write>(
+    out: &mut W,
+    fails: &mut u32,
+    name: &str,
+    ok: bool,
+    detail: core::fmt::Arguments,
+) {
+    let _ = writeln!(
+        out,
+        "check {name} {} {detail}",
+        if ok { "ok" } else { "FAIL" }
+    );
+    if !ok {
+        *fails += 1;
+    }
+}
+
+fn checks<W: Write>(out: &mut W) -> u32 {
+    let mut fails = 0;
+    // Moments: deviations (-1,-2), (1,2) around (2,4): sample covariance [2 4; 4 8].
+    let mut m = Moments2::<f32>::new();
+    let _ = m.push([1.0, 2.0]);
+    let _ = m.push([3.0, 6.0]);
+    let c = m
+        .sample_covariance()
+        .map(|c| *c.matrix())
+        .unwrap_or([[0.0; 2]; 2]);
+    check(
+        out,
+        &mut fails,
+        "moments",
+        c == [[2.0, 4.0], [4.0, 8.0]],
+        format_args!("{c:?}"),
+    );
+    let mut e = ExactMoments2::new();
+    let _ = e.push([1, -2]);
+    let _ = e.push([3, 4]);
+    check(
+        out,
+        &mut fails,
+        "exact",
+        e.scaled_comoment() == [4, 12, 36],
+        format_args!("{:?}", e.scaled_comoment()),
+    );
+    // Gate: C = [4 2; 2 5], x - mean = (2, 1): d^2 = 1 (by hand).
+    let base = Baseline::new(
+        [1.0f32, 1.0],
+        &Covariance::from_matrix([[4.0, 2.0], [2.0, 5.0]]),
+    );
+    let d2 = base
+        .map(|b| b.mahalanobis2(&[3.0, 2.0]))
+        .unwrap_or(f32::NAN);
+    check(
+        out,
+        &mut fails,
+        "gate",
+        (d2 - 1.0).abs() < 1e-6,
+        format_args!("d2 {d2}"),
+    );
+    // Sheppard (1899): P(X > 0, Y > 0) = 1/4 + asin(r) / (2 pi); r = 0.5 gives 1/3.
+    let p = bvn_upper_f32(0.0, 0.0, 0.5);
+    check(
+        out,
+        &mut fails,
+        "sheppard",
+        (p - 1.0 / 3.0).abs() < 2e-6,
+        format_args!("{p}"),
+    );
+    // Rayleigh: unit circular normal, radius 2: outside = exp(-2).
+    let cov = Covariance::from_matrix([[1.0f32, 0.0], [0.0, 1.0]]);
+    let z = CircleZone::new([0.0f32, 0.0], 4.0).map(Zone::Circle);
+    let y = z.ok().and_then(|z| z.probability(&[0.0, 0.0], &cov).ok());
+    let out_p = y.map_or(f32::NAN, |y| y.outside);
+    check(
+        out,
+        &mut fails,
+        "rayleigh",
+        (out_p - libm_exp(-2.0)).abs() < 2e-6,
+        format_args!("{out_p}"),
+    );
+    // Watch: learn 10, then a far sample alarms (MEWMA) and latches.
+    let mut cfg = WatchConfig::<f32, 2>::new(10, 0.0027);
+    cfg.mewma = Some((0.2, 9.65, false));
+    let mut ok = false;
+    if let Ok(mut w) = Watch::<f32, 2, 16>::new(cfg) {
+        for k in 0..10 {
+            let t = k as f32;
+            w.push([t * 0.7 % 1.3, (t * 1.1) % 0.9]);
+        }
+        let s = w.push([40.0, -40.0]);
+        ok = s.alarm.is_some() && matches!(w.push([0.5, 0.5]).verdict, Verdict::NoGo(_));
+    }
+    check(out, &mut fails, "watch", ok, format_args!(""));
+    fails
+}
+
+fn libm_exp(x: f32) -> f32 {
+    // exp through the crate's own Real trait, so no extra dependency.
+    <f32 as covgate::math::Real>::exp(x)
+}
+
+/// Parses the demo capture's x, y columns.
+fn samples() -> impl Iterator<Item = [f32; 2]> {
+    CAPTURE.lines().skip(1).filter_map(|l| {
+        let mut f = l.split(',').skip(1);
+        let x: f32 = f.next()?.parse().ok()?;
+        let y: f32 = f.next()?.parse().ok()?;
+        Some([x, y])
+    })
+}
+
+fn replay<W: Write>(out: &mut W) {
+    // Integer path: exact sums of the integer micrometres, pivot at the nominal (0, 0).
+    let mut ex = Pivoted::with_pivot(ExactMoments2::new(), [0i32, 0]);
+    for x in samples() {
+        let _ = ex.push([x[0] as i32, x[1] as i32]);
+    }
+    let s = ex.inner().sums();
+    let p = ex.inner().products();
+    let _ = writeln!(
+        out,
+        "replay-int n {} sums {} {} products {} {} {}",
+        ex.count(),
+        s[0],
+        s[1],
+        p[0],
+        p[1],
+        p[2]
+    );
+    // f32 path: the drilling-cell demo settings (learn 100, circle 60, MEWMA 0.1 / 12.34,
+    // every alarm acknowledged), one letter per sample.
+    let mut cfg = WatchConfig::<f32, 2>::new(100, 0.0027);
+    cfg.zone = CircleZone::new([0.0, 0.0], 60.0).ok().map(Zone::Circle);
+    cfg.mewma = Some((0.1, 12.34, false));
+    let _ = write!(out, "replay-f32 verdicts ");
+    if let Ok(mut w) = Watch::<f32, 2, 128>::new(cfg) {
+        for x in samples() {
+            let st = w.push(x);
+            let c = match (st.alarm.is_some(), st.verdict) {
+                (true, _) => 'A',
+                (_, Verdict::Go(_)) => 'G',
+                (_, Verdict::NotReady) => 'L',
+                (_, Verdict::NoGo(_)) => 'N',
+            };
+            let _ = out.write_char(c);
+            if st.alarm.is_some() {
+                w.acknowledge();
+            }
+        }
+        let _ = writeln!(out);
+        if let Some(m) = w.monitor() {
+            let b = m.gate().baseline();
+            let c = b.covariance();
+            let mm = b.mean();
+            let _ = writeln!(
+                out,
+                "replay-f32 mean {:08x} {:08x} cov {:08x} {:08x} {:08x}",
+                mm[0].to_bits(),
+                mm[1].to_bits(),
+                c.matrix()[0][0].to_bits(),
+                c.matrix()[0][1].to_bits(),
+                c.matrix()[1][1].to_bits()
+            );
+        }
+    } else {
+        let _ = writeln!(out, "none");
+    }
+}
+
+/// Ticks of `reps` calls of `f`, minus the same loop with nothing in it.
+fn measure<C: Ticks>(clk: &mut C, reps: u32, mut f: impl FnMut(u32)) -> u32 {
+    let t0 = clk.now();
+    for i in 0..reps {
+        f(black_box(i));
+    }
+    let t1 = clk.now();
+    let t2 = clk.now();
+    for i in 0..reps {
+        black_box(i);
+    }
+    let t3 = clk.now();
+    let busy = t0.wrapping_sub(t1) & 0x00FF_FFFF;
+    let idle = t2.wrapping_sub(t3) & 0x00FF_FFFF;
+    busy.saturating_sub(idle)
+}
+
+fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
+    // Calibration: ticks of a loop of known instruction count.
+    const CAL: u32 = 2_000_000;
+    let t0 = clk.now();
+    clk.known_loop(CAL);
+    let t1 = clk.now();
+    let cal_ticks = (t0.wrapping_sub(t1) & 0x00FF_FFFF).max(1);
+    let per_call = |ticks: u32, reps: u32| -> u32 {
+        ((u64::from(ticks) * u64::from(CAL)) / (u64::from(cal_ticks) * u64::from(reps))) as u32
+    };
+    let _ = writeln!(out, "calibration ticks {cal_ticks} for {CAL} instructions");
+    let reps = 2000;
+    let mut m = Moments2::<f32>::new();
+    let t = measure(clk, reps, |i| {
+        let _ = black_box(&mut m).push(black_box([i as f32 * 0.25, 1.0]));
+    });
+    let _ = writeln!(out, "count moments-f32-update {}", per_call(t, reps));
+    let mut ex = ExactMoments2::new();
+    let t = measure(clk, reps, |i| {
+        let _ = black_box(&mut ex).push(black_box([i as i32 & 255, 7]));
+    });
+    let _ = writeln!(out, "count moments-exact-update {}", per_call(t, reps));
+    let base = Baseline::new(
+        [1.0f32, 1.0],
+        &Covariance::from_matrix([[4.0, 2.0], [2.0, 5.0]]),
+    );
+    if let Ok(b) = base {
+        if let Ok(g) = Gate::new(b, Limit::ChiSquare { alpha: 0.0027 }) {
+            let t = measure(clk, reps, |i| {
+                black_box(black_box(&g).passes(&black_box([i as f32 * 0.001, 1.0])));
+            });
+            let _ = writeln!(out, "count gate-f32 {}", per_call(t, reps));
+            let gi = Baseline::new(
+                [100.0f64, 50.0],
+                &Covariance::from_matrix([[40.0, 12.0], [12.0, 25.0]]),
+            )
+            .ok()
+            .and_then(|b| Gate::new(b, Limit::ChiSquare { alpha: 0.0027 }).ok())
+            .and_then(|g| IntGate2::from_gate(&g).ok());
+            if let Some(ig) = gi {
+                let t = measure(clk, reps, |i| {
+                    black_box(black_box(&ig).passes(&black_box([100 + (i as i32 & 15), 50])));
+                });
+                let _ = writeln!(out, "count gate-int {}", per_call(t, reps));
+            }
+        }
+    }
+    let circle = CircleZone::new([0.0, 0.0], 60.0).map(Zone::Circle);
+    if let Some(z) = circle.ok().and_then(|c| IntZone::from_zone(&c).ok()) {
+        let t = measure(clk, reps, |i| {
+            black_box(black_box(&z).contains(&black_box([i as i32 & 31, 3])));
+        });
+        let _ = writeln!(out, "count zone-int-circle-contains {}", per_call(t, reps));
+    }
+    let cov = Covariance::from_matrix([[1.69f32, 0.676], [0.676, 0.64]]);
+    let small = 50;
+    if let Ok(r) = RectZone::new([-2.0f32, -1.5], [3.0, 2.0]) {
+        let z = Zone::Rect(r);
+        let t = measure(clk, small, |i| {
+            black_box(
+                black_box(&z)
+                    .probability(&black_box([0.4 + i as f32 * 1e-4, -0.2]), &cov)
+                    .ok(),
+            );
+        });
+        let _ = writeln!(out, "count rect-probability-f32 {}", per_call(t, small));
+    }
+    if let Ok(c) = CircleZone::new([0.0f32, 0.0], 3.2) {
+        let z = Zone::Circle(c);
+        let t = measure(clk, small, |i| {
+            black_box(
+                black_box(&z)
+                    .probability(&black_box([0.4 + i as f32 * 1e-4, -0.2]), &cov)
+                    .ok(),
+            );
+        });
+        let _ = writeln!(out, "count circle-probability-f32 {}", per_call(t, small));
+    }
+    let mut cfg = WatchConfig::<f32, 2>::new(10, 0.0027);
+    cfg.zone = CircleZone::new([0.0, 0.0], 60.0).ok().map(Zone::Circle);
+    cfg.mewma = Some((0.1, 1e30, false));
+    cfg.mcusum = Some((0.5, 1e30));
+    cfg.dispersion = Some((0.1, 1e30));
+    if let Ok(mut w) = Watch::<f32, 2, 16>::new(cfg) {
+        for k in 0..10 {
+            let t = k as f32;
+            w.push([(t * 0.7) % 1.3, (t * 1.1) % 0.9]);
+        }
+        let t = measure(clk, reps, |i| {
+            black_box(black_box(&mut w).push(black_box([0.5 + (i & 7) as f32 * 0.01, 0.4])));
+        });
+        let _ = writeln!(out, "count monitor-step-f32 {}", per_call(t, reps));
+    }
+}
+
+/// Everything, in order; returns the number of failed checks.
+pub fn run<W: Write, C: Ticks>(out: &mut W, clk: &mut C, board: &str) -> u32 {
+    let _ = writeln!(out, "covgate firmware on {board}");
+    let fails = checks(out);
+    replay(out);
+    counts(out, clk);
+    let _ = writeln!(out, "done {fails}");
+    fails
+}

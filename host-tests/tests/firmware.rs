@@ -1,0 +1,175 @@
+//! The firmware on emulated Cortex-M0, M3 and M4F (QEMU): builds and runs each board crate
+//! under `boards/`, and compares what it prints with the same code run here.
+//!
+//! Needs `qemu-system-arm` and the three thumb targets. Without them the test says loudly that
+//! it skipped; with `CI=true` a missing tool is a failure.
+//!
+//! `cargo test -p covgate-host --test firmware -- --nocapture` prints the instruction counts.
+
+use std::path::Path;
+use std::process::Command;
+
+use covgate::{CircleZone, ExactMoments2, Pivoted, Verdict, Watch, WatchConfig, Zone};
+
+const BOARDS: [(&str, &str); 3] = [
+    ("qemu-m0", "thumbv6m-none-eabi"),
+    ("qemu-m3", "thumbv7m-none-eabi"),
+    ("qemu-m4f", "thumbv7em-none-eabihf"),
+];
+
+fn tools_missing() -> Option<String> {
+    let qemu = Command::new("qemu-system-arm").arg("--version").output();
+    if !qemu.is_ok_and(|o| o.status.success()) {
+        return Some("qemu-system-arm not found".into());
+    }
+    let installed = Command::new("rustup")
+        .args(["target", "list", "--installed"])
+        .output()
+        .ok()?;
+    let list = String::from_utf8_lossy(&installed.stdout).to_string();
+    BOARDS
+        .iter()
+        .find(|(_, t)| !list.contains(t))
+        .map(|(_, t)| format!("rust target {t} not installed"))
+}
+
+/// The host run of the firmware's replay: the same code and the same settings.
+fn host_replay() -> (String, String, String) {
+    let csv = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("../fixtures/demo/drilling-cell.csv"),
+    )
+    .unwrap();
+    let samples: Vec<[f32; 2]> = csv
+        .lines()
+        .skip(1)
+        .map(|l| {
+            let f: Vec<f32> = l
+                .split(',')
+                .skip(1)
+                .take(2)
+                .map(|v| v.parse().unwrap())
+                .collect();
+            [f[0], f[1]]
+        })
+        .collect();
+    let mut ex = Pivoted::with_pivot(ExactMoments2::new(), [0i32, 0]);
+    for x in &samples {
+        ex.push([x[0] as i32, x[1] as i32]).unwrap();
+    }
+    let (s, p) = (ex.inner().sums(), ex.inner().products());
+    let int = format!(
+        "replay-int n {} sums {} {} products {} {} {}",
+        ex.count(),
+        s[0],
+        s[1],
+        p[0],
+        p[1],
+        p[2]
+    );
+    let mut cfg = WatchConfig::<f32, 2>::new(100, 0.0027);
+    cfg.zone = Some(Zone::Circle(CircleZone::new([0.0, 0.0], 60.0).unwrap()));
+    cfg.mewma = Some((0.1, 12.34, false));
+    let mut w = Watch::<f32, 2, 128>::new(cfg).unwrap();
+    let mut verdicts = String::from("replay-f32 verdicts ");
+    for x in &samples {
+        let st = w.push(*x);
+        verdicts.push(match (st.alarm.is_some(), st.verdict) {
+            (true, _) => 'A',
+            (_, Verdict::Go(_)) => 'G',
+            (_, Verdict::NotReady) => 'L',
+            (_, Verdict::NoGo(_)) => 'N',
+        });
+        if st.alarm.is_some() {
+            w.acknowledge();
+        }
+    }
+    let b = w.monitor().unwrap().gate().baseline();
+    let c = b.covariance();
+    let m = b.mean();
+    let stats = format!(
+        "replay-f32 mean {:08x} {:08x} cov {:08x} {:08x} {:08x}",
+        m[0].to_bits(),
+        m[1].to_bits(),
+        c.matrix()[0][0].to_bits(),
+        c.matrix()[0][1].to_bits(),
+        c.matrix()[1][1].to_bits()
+    );
+    (int, verdicts, stats)
+}
+
+#[test]
+fn firmware_runs_on_three_cores_and_matches_the_host() {
+    if let Some(why) = tools_missing() {
+        if std::env::var("CI").as_deref() == Ok("true") {
+            panic!("CI=true and the emulator tests cannot run: {why}");
+        }
+        eprintln!("\n*** SKIPPED the emulator tests: {why} (install qemu-system-arm and the thumb targets; see DEVELOPERS.md) ***\n");
+        return;
+    }
+    let (int, verdicts, stats) = host_replay();
+    let boards = Path::new(env!("CARGO_MANIFEST_DIR")).join("../boards");
+    let mut table = Vec::new();
+    for (board, _) in BOARDS {
+        let out = Command::new(env!("CARGO"))
+            .args(["run", "--release", "--quiet"])
+            .current_dir(boards.join(board))
+            .env_remove("CARGO_TARGET_DIR")
+            .output()
+            .expect("cargo runs");
+        let stdout = String::from_utf8_lossy(&out.stdout).to_string();
+        let stderr = String::from_utf8_lossy(&out.stderr).to_string();
+        assert!(
+            out.status.success(),
+            "{board}: exit {:?}\n{stdout}\n{stderr}",
+            out.status.code()
+        );
+        let lines: Vec<&str> = stdout.lines().collect();
+        assert!(lines.contains(&"done 0"), "{board}: {stdout}");
+        for l in lines.iter().filter(|l| l.starts_with("check ")) {
+            assert!(l.split_whitespace().nth(2) == Some("ok"), "{board}: {l}");
+        }
+        // The integer path is bit-identical; the f32 verdicts and statistics too (same code,
+        // IEEE single precision on every core, soft or hard float).
+        assert!(
+            lines.contains(&int.as_str()),
+            "{board}: integer replay differs\nhost: {int}\n{stdout}"
+        );
+        assert!(
+            lines.contains(&verdicts.as_str()),
+            "{board}: verdicts differ\nhost: {verdicts}\n{stdout}"
+        );
+        assert!(
+            lines.contains(&stats.as_str()),
+            "{board}: f32 statistics differ\nhost: {stats}\n{stdout}"
+        );
+        for l in lines.iter().filter(|l| l.starts_with("count ")) {
+            let f: Vec<&str> = l.split_whitespace().collect();
+            table.push((board, f[1].to_string(), f[2].parse::<u64>().unwrap()));
+        }
+    }
+    println!("\ninstructions per call (QEMU -icount shift=0, SysTick calibrated on a known loop):");
+    let ops: Vec<String> = table
+        .iter()
+        .filter(|r| r.0 == "qemu-m0")
+        .map(|r| r.1.clone())
+        .collect();
+    println!(
+        "{:<32} {:>10} {:>10} {:>10}",
+        "operation", "M0", "M3", "M4F"
+    );
+    for op in ops {
+        let get = |b: &str| {
+            table
+                .iter()
+                .find(|r| r.0 == b && r.1 == op)
+                .map_or(0, |r| r.2)
+        };
+        println!(
+            "{op:<32} {:>10} {:>10} {:>10}",
+            get("qemu-m0"),
+            get("qemu-m3"),
+            get("qemu-m4f")
+        );
+    }
+    assert!(table.len() >= 24, "every board prints its counts");
+}
