@@ -111,6 +111,15 @@ pub struct Outcome {
 
 /// Runs the samples through `Watch<f32, N, MAX_LEARN>`, exactly as a device with an FPU does.
 pub fn run<const N: usize>(samples: &[[f32; N]], s: &Settings) -> Result<Outcome, String> {
+    run_with_progress(samples, s, |_| {})
+}
+
+/// As [`run`], calling `progress(k)` after sample `k`.
+pub fn run_with_progress<const N: usize>(
+    samples: &[[f32; N]],
+    s: &Settings,
+    mut progress: impl FnMut(usize),
+) -> Result<Outcome, String> {
     if s.learn as usize > MAX_LEARN {
         return Err(format!("--learn {} exceeds {MAX_LEARN}", s.learn));
     }
@@ -130,8 +139,14 @@ pub fn run<const N: usize>(samples: &[[f32; N]], s: &Settings) -> Result<Outcome
     let mut w = Watch::<f32, N, MAX_LEARN>::new(cfg).map_err(|e| format!("settings: {e}"))?;
     let mut rows = Vec::with_capacity(samples.len());
     let mut first_alarm = None;
+    let mut learned_at = None;
     for (k, x) in samples.iter().enumerate() {
         let step = w.push(*x);
+        progress(k);
+        if learned_at.is_none() && w.monitor().is_some() {
+            // The sample that armed the watch was still a learning sample.
+            learned_at = Some(k + 1);
+        }
         let stat = w.monitor().and_then(|m| {
             let st = m.chart_statistics();
             st[0].or(st[1]).map(f64::from)
@@ -188,11 +203,9 @@ pub fn run<const N: usize>(samples: &[[f32; N]], s: &Settings) -> Result<Outcome
         .iter()
         .map(|r| r.iter().map(|&v| f64::from(v)).collect())
         .collect();
-    let learned_at = rows
-        .iter()
-        .position(|r| r.verdict != "learning")
-        .unwrap_or(rows.len());
-    let monitored = &samples[learned_at..];
+    let monitored = samples
+        .get(learned_at.unwrap_or(samples.len())..)
+        .unwrap_or(&[]);
     let limit = m.gate().limit();
     let out_of_family = monitored
         .iter()

@@ -214,7 +214,10 @@ fn settings_come_from_toml_and_flags_win() {
         out.to_str().unwrap(),
     ]);
     assert_eq!(code, 2);
-    assert!(err.contains("cfg.toml"), "{err}");
+    assert!(
+        err.contains("cfg.toml:1:") && err.contains("learnn"),
+        "{err}"
+    );
     std::fs::remove_dir_all(&d).unwrap();
 }
 

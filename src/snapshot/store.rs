@@ -77,13 +77,27 @@ impl<F: NorFlash> SlotStore<F> {
         }
     }
 
+    /// Both slots; a slot that cannot be read counts as holding no record, so one damaged
+    /// slot never hides the other (on parts with error-correcting flash a torn write can make
+    /// a slot unreadable). Only when both reads fail is that an error.
+    #[allow(clippy::type_complexity)]
+    fn read_both(
+        &mut self,
+        a: &mut [u8; MAX_RECORD],
+        b: &mut [u8; MAX_RECORD],
+    ) -> Result<(Option<(u32, usize)>, Option<(u32, usize)>), StoreError<F::Error>> {
+        match (self.read_slot(0, a), self.read_slot(1, b)) {
+            (Err(e), Err(_)) => Err(e),
+            (ra, rb) => Ok((ra.ok().flatten(), rb.ok().flatten())),
+        }
+    }
+
     /// The newest valid record: copies its payload into `out` and returns `(sequence,
     /// length)`, or `None` when neither slot holds a valid record.
     pub fn load(&mut self, out: &mut [u8]) -> Result<Option<(u32, usize)>, StoreError<F::Error>> {
         let mut a = [0u8; MAX_RECORD];
         let mut b = [0u8; MAX_RECORD];
-        let ra = self.read_slot(0, &mut a)?;
-        let rb = self.read_slot(1, &mut b)?;
+        let (ra, rb) = self.read_both(&mut a, &mut b)?;
         let (buf, seq, len) = match (ra, rb) {
             (None, None) => return Ok(None),
             (Some((s, l)), None) => (&a, s, l),
@@ -110,8 +124,7 @@ impl<F: NorFlash> SlotStore<F> {
         }
         let mut a = [0u8; MAX_RECORD];
         let mut b = [0u8; MAX_RECORD];
-        let ra = self.read_slot(0, &mut a)?;
-        let rb = self.read_slot(1, &mut b)?;
+        let (ra, rb) = self.read_both(&mut a, &mut b)?;
         let (target, seq) = match (ra, rb) {
             (None, None) => (0, 1),
             (Some((s, _)), None) => (1, s.wrapping_add(1)),
@@ -144,6 +157,18 @@ impl<F: NorFlash> SlotStore<F> {
         Ok(seq)
     }
 }
+
+impl<E: core::fmt::Debug> core::fmt::Display for StoreError<E> {
+    fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+        match self {
+            StoreError::Flash(e) => write!(f, "flash: {e:?}"),
+            StoreError::Layout => f.write_str("slots do not fit or are not erase-aligned"),
+            StoreError::TooLarge => f.write_str("record too large"),
+        }
+    }
+}
+
+impl<E: core::fmt::Debug> core::error::Error for StoreError<E> {}
 
 /// `a` is newer than `b` in serial-number arithmetic (RFC 1982 style, 32 bits).
 fn newer(a: u32, b: u32) -> bool {

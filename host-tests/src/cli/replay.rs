@@ -122,7 +122,8 @@ pub fn read_capture(path: &Path, columns: &[String]) -> Result<Capture, String> 
                     header[i]
                 )
             })?;
-            if !v.is_finite() {
+            // Finite in f64 is not enough: the device computes in f32.
+            if !(v as f32).is_finite() {
                 return Err(format!(
                     "{name}:{line}:{}: {:?} in column {:?} is not finite",
                     i + 1,
@@ -280,8 +281,11 @@ pub fn resolve(a: &Args) -> Result<Resolved, String> {
     let file = match &a.config {
         Some(p) => {
             let text = std::fs::read_to_string(p).map_err(|e| format!("{}: {e}", p.display()))?;
-            toml::from_str::<FileConfig>(&text)
-                .map_err(|e| format!("{}: {}", p.display(), super::first_line(&e.to_string())))?
+            toml::from_str::<FileConfig>(&text).map_err(|e| {
+                let start = e.span().map_or(0, |s| s.start).min(text.len());
+                let line = text[..start].matches('\n').count() + 1;
+                format!("{}:{line}: {}", p.display(), super::first_line(e.message()))
+            })?
         }
         None => FileConfig::default(),
     };
@@ -337,8 +341,7 @@ pub fn run(a: &Args) -> Result<serde_json::Value, String> {
             .iter()
             .map(|v| std::array::from_fn(|i| v[i] as f32))
             .collect();
-        bar.inc(samples.len() as u64);
-        replay::run::<D>(&samples, &r.settings)
+        replay::run_with_progress::<D>(&samples, &r.settings, |_| bar.inc(1))
     })?;
     bar.finish_and_clear();
     let summary = summary_json(&a.capture, &r, &outcome);
