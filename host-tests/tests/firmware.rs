@@ -171,5 +171,117 @@ fn firmware_runs_on_three_cores_and_matches_the_host() {
             get("qemu-m4f")
         );
     }
-    assert!(table.len() >= 24, "every board prints its counts");
+    assert!(table.len() >= 27, "every board prints its counts");
+    no_float_on_the_m0_integer_path(&boards);
+}
+
+/// The M0 has no FPU: nothing reachable from the per-sample integer path
+/// (`covgate_firmware::integer_step`: exact update, integer gate, integer point in zone) may
+/// call a soft-float or a division routine. The call graph is read from the release binary's
+/// disassembly (`llvm-objdump` of the rustup `llvm-tools` component), following `bl`, `blx`
+/// and tail-call `b` into other functions.
+fn no_float_on_the_m0_integer_path(boards: &Path) {
+    let sysroot = Command::new("rustc")
+        .args(["--print", "sysroot"])
+        .output()
+        .unwrap();
+    let sysroot = String::from_utf8_lossy(&sysroot.stdout).trim().to_string();
+    let host = Command::new("rustc").arg("-vV").output().unwrap();
+    let host = String::from_utf8_lossy(&host.stdout)
+        .lines()
+        .find_map(|l| l.strip_prefix("host: ").map(str::to_string))
+        .unwrap();
+    let objdump = Path::new(&sysroot)
+        .join("lib/rustlib")
+        .join(host)
+        .join("bin/llvm-objdump");
+    if !objdump.exists() {
+        if std::env::var("CI").as_deref() == Ok("true") {
+            panic!("CI=true and llvm-objdump is missing: rustup component add llvm-tools");
+        }
+        eprintln!("\n*** SKIPPED the M0 soft-float check: rustup component add llvm-tools ***\n");
+        return;
+    }
+    // Flash and RAM of each board (llvm-size, Berkeley format: text + data in flash,
+    // data + bss in RAM; the M0's 16 KiB RAM holds the 128-sample replay buffer).
+    let size = objdump.with_file_name("llvm-size");
+    for (board, target) in BOARDS {
+        let elf = boards
+            .join("target")
+            .join(target)
+            .join("release")
+            .join(format!("covgate-{board}"));
+        let out = Command::new(&size).arg(&elf).output().unwrap();
+        let text = String::from_utf8_lossy(&out.stdout).to_string();
+        let f: Vec<u64> = text
+            .lines()
+            .nth(1)
+            .unwrap_or("")
+            .split_whitespace()
+            .take(3)
+            .filter_map(|v| v.parse().ok())
+            .collect();
+        if f.len() == 3 {
+            println!("{board}: flash {} bytes (text {} + data {}), RAM {} bytes (data + bss, stack not counted)", f[0] + f[1], f[0], f[1], f[1] + f[2]);
+        }
+    }
+    let elf = boards.join("target/thumbv6m-none-eabi/release/covgate-qemu-m0");
+    let dis = Command::new(&objdump)
+        .args(["-d", "--demangle"])
+        .arg(&elf)
+        .output()
+        .unwrap();
+    assert!(dis.status.success());
+    let text = String::from_utf8_lossy(&dis.stdout);
+    // Function name -> names it calls.
+    let mut calls: std::collections::HashMap<String, Vec<String>> = Default::default();
+    let mut current = String::new();
+    for line in text.lines() {
+        if let Some(name) = line
+            .strip_suffix(">:")
+            .and_then(|l| l.split_once(" <"))
+            .map(|(_, n)| n)
+        {
+            current = name.to_string();
+            calls.entry(current.clone()).or_default();
+            continue;
+        }
+        let t = line.split('\t').collect::<Vec<_>>();
+        let is_call = t
+            .iter()
+            .any(|f| matches!(f.trim(), "bl" | "blx" | "b" | "b.w"));
+        if let (true, Some(target)) = (is_call, line.split_once(" <").map(|(_, r)| r)) {
+            let callee = target.split('>').next().unwrap_or("");
+            if !callee.contains('+') && callee != current {
+                calls
+                    .entry(current.clone())
+                    .or_default()
+                    .push(callee.to_string());
+            }
+        }
+    }
+    let root = calls
+        .keys()
+        .find(|k| k.starts_with("covgate_firmware::integer_step"))
+        .cloned()
+        .expect("integer_step is in the M0 binary");
+    let (mut seen, mut todo) = (std::collections::HashSet::new(), vec![root.clone()]);
+    while let Some(f) = todo.pop() {
+        if !seen.insert(f.clone()) {
+            continue;
+        }
+        let forbidden = f.starts_with("__aeabi_f")
+            || f.starts_with("__aeabi_d")
+            || (f.starts_with("__aeabi_") && f.contains("div"))
+            || f.contains("sf3")
+            || f.contains("df3");
+        assert!(
+            !forbidden,
+            "{f} is reachable from the M0 integer path ({root})"
+        );
+        todo.extend(calls.get(&f).cloned().unwrap_or_default());
+    }
+    let mut reached: Vec<&String> = seen.iter().filter(|f| **f != root).collect();
+    reached.sort();
+    println!("M0 integer path calls: {reached:?} (no soft-float, no division)");
 }

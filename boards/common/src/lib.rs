@@ -196,6 +196,15 @@ fn replay<W: Write>(out: &mut W) {
     }
 }
 
+/// The per-sample path of a node without FPU: exact-integer update, integer gate, integer
+/// point in zone. Kept out of line so the host test can inspect its call graph in the M0
+/// binary and refuse any soft-float or division routine reachable from it.
+#[inline(never)]
+pub fn integer_step(acc: &mut ExactMoments2, gate: &IntGate2, zone: &IntZone, x: [i32; 2]) -> bool {
+    let taken = acc.push(x).is_ok();
+    taken & gate.passes(&x) & zone.contains(&x)
+}
+
 /// Ticks of `reps` calls of `f`, minus the same loop with nothing in it.
 fn measure<C: Ticks>(clk: &mut C, reps: u32, mut f: impl FnMut(u32)) -> u32 {
     let t0 = clk.now();
@@ -257,6 +266,21 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
                     black_box(black_box(&ig).passes(&black_box([100 + (i as i32 & 15), 50])));
                 });
                 let _ = writeln!(out, "count gate-int {}", per_call(t, reps));
+                let zone = CircleZone::new([100.0f64, 50.0], 60.0)
+                    .ok()
+                    .and_then(|c| IntZone::from_zone(&Zone::Circle(c)).ok());
+                if let Some(z) = zone {
+                    let mut acc = ExactMoments2::new();
+                    let t = measure(clk, reps, |i| {
+                        black_box(integer_step(
+                            &mut acc,
+                            &ig,
+                            &z,
+                            black_box([100 + (i as i32 & 15), 50]),
+                        ));
+                    });
+                    let _ = writeln!(out, "count integer-step {}", per_call(t, reps));
+                }
             }
         }
     }
@@ -316,4 +340,116 @@ pub fn run<W: Write, C: Ticks>(out: &mut W, clk: &mut C, board: &str) -> u32 {
     counts(out, clk);
     let _ = writeln!(out, "done {fails}");
     fails
+}
+
+/// Calls every public 2-D entry point once with inputs the optimiser cannot see through, for
+/// the panic-freedom link check (`src/bin/nopanic.rs` of each board): if any panic path
+/// survives in these functions, the board's `nopanic` binary fails to link.
+pub fn exercise_everything(seed: u32) -> u32 {
+    let s = black_box(seed) as f32 * 1e-3;
+    let i = black_box(seed) as i32;
+    let mut acc = 0u32;
+    let mut m = Moments2::<f32>::new();
+    let _ = m.push([s, -s]);
+    let m2 = black_box(m);
+    let _ = covgate::Merge::merge(&mut m, &m2);
+    let cov = m.sample_covariance().ok();
+    let _ = m.population_covariance();
+    if let Some(c) = cov {
+        let _ = black_box(c.correlation());
+        let _ = black_box(c.ellipse());
+        let _ = black_box(c.generalized_variance());
+    }
+    let mut e = ExactMoments2::new();
+    let _ = e.push([i, -i]);
+    let e2 = black_box(e);
+    let _ = covgate::Merge::merge(&mut e, &e2);
+    let _ = black_box(e.sample_covariance::<f32>());
+    let mut p = Pivoted::with_pivot(ExactMoments2::new(), [i, 3]);
+    let _ = p.push([i + 1, 2]);
+    let _ = black_box(p.mean_f64());
+    let mut ew = covgate::EwMoments2::<f32>::new(black_box(0.1)).ok();
+    if let Some(ew) = &mut ew {
+        let _ = ew.push([s, s]);
+        let _ = black_box(ew.covariance());
+    }
+    let c = Covariance::from_matrix([[black_box(4.0f32), 1.0], [1.0, 3.0]]);
+    if let Ok(b) = Baseline::with_resolution([s, 0.0], &c, [0.1, 0.1]) {
+        if let Ok(g) = Gate::new(
+            b,
+            Limit::PhaseII {
+                m: 30,
+                alpha: black_box(0.01),
+            },
+        ) {
+            acc += u32::from(g.passes(&[s, 1.0]));
+            acc += u32::from(g.verdict(&[s, 1.0]).is_go());
+        }
+    }
+    let c64 = Covariance::from_matrix([[black_box(40.0f64), 12.0], [12.0, 25.0]]);
+    if let Some(ig) = Baseline::new([100.0f64, 50.0], &c64)
+        .ok()
+        .and_then(|b| Gate::new(b, Limit::ChiSquare { alpha: 0.0027 }).ok())
+        .and_then(|g| IntGate2::from_gate(&g).ok())
+    {
+        acc += u32::from(ig.passes(&[i, 50]));
+    }
+    let zones = [
+        RectZone::new([-s, f32::NEG_INFINITY], [3.0, 2.0])
+            .map(Zone::Rect)
+            .ok(),
+        CircleZone::new([s, 0.0], 3.0).map(Zone::Circle).ok(),
+        covgate::EllipseZone::new([s, 0.0], 3.0, 1.0, 0.5)
+            .map(Zone::Ellipse)
+            .ok(),
+    ];
+    for z in zones.iter().flatten() {
+        acc += u32::from(z.contains(&[s, 0.5]));
+        if let Ok(y) = z.probability(&[s, 0.1], &c) {
+            acc += (y.capability().ppm > 1.0) as u32;
+        }
+        let _ = black_box(z.bounds(&[s, 0.1], &c));
+    }
+    if let Some(z) = CircleZone::new([0.0f64, 0.0], 60.0).ok().map(Zone::Circle) {
+        if let Ok(iz) = IntZone::from_zone(&z) {
+            acc += u32::from(iz.contains(&[i, 3]));
+        }
+    }
+    let _ = black_box(covgate::coverage_radius(&c, black_box(0.5f32)));
+    let mut cfg = WatchConfig::<f32, 2>::new(black_box(10), 0.0027);
+    cfg.mewma = Some((0.1, 8.64, true));
+    cfg.mcusum = Some((0.5, 5.5));
+    cfg.dispersion = Some((0.1, 3.2));
+    cfg.subgroup = Some((5, 0.01));
+    cfg.gate_rule = Some((2, 3));
+    if let Ok(mut w) = Watch::<f32, 2, 16>::new(cfg) {
+        for k in 0..black_box(12) {
+            let _ = w.push([s + k as f32, 0.5]);
+        }
+        w.acknowledge();
+        if let Some(mon) = w.monitor() {
+            let mut buf = [0u8; 128];
+            if let Ok(n) = mon.encode_snapshot(&mut buf) {
+                let back =
+                    covgate::Monitor::<f32, 2>::decode_snapshot(black_box(&buf[..n.min(128)]));
+                acc += u32::from(back.is_ok());
+            }
+        }
+        w.relearn();
+    }
+    let f = covgate::ReportFrame2 {
+        node: 1,
+        seq: black_box(seed),
+        alarm: None,
+        moments: m,
+        charts: [Some(s), None, None],
+        go: 1,
+        nogo: 0,
+        alarms: 0,
+    };
+    let mut fb = [0u8; 64];
+    if f.encode(&mut fb).is_ok() {
+        acc += u32::from(covgate::ReportFrame2::decode(black_box(&fb)).is_ok());
+    }
+    acc
 }
