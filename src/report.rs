@@ -97,31 +97,6 @@ pub struct ReportFrame<const N: usize, const L: usize> {
 /// The 2-D frame (64 bytes).
 pub type ReportFrame2 = ReportFrame<2, 3>;
 
-fn code(c: Option<Chart>) -> u8 {
-    match c {
-        None => 0,
-        Some(Chart::Gate) => 1,
-        Some(Chart::Mewma) => 2,
-        Some(Chart::Mcusum) => 3,
-        Some(Chart::Dispersion) => 4,
-        Some(Chart::Subgroup) => 5,
-        Some(Chart::Fault) => 6,
-    }
-}
-
-fn chart(c: u8) -> Option<Option<Chart>> {
-    Some(match c {
-        0 => None,
-        1 => Some(Chart::Gate),
-        2 => Some(Chart::Mewma),
-        3 => Some(Chart::Mcusum),
-        4 => Some(Chart::Dispersion),
-        5 => Some(Chart::Subgroup),
-        6 => Some(Chart::Fault),
-        _ => return None,
-    })
-}
-
 impl<const N: usize, const L: usize> ReportFrame<N, L> {
     /// Writes the frame; returns its length ([`frame_len`]`(N)`).
     pub fn encode(&self, out: &mut [u8]) -> Result<usize, FrameError> {
@@ -133,7 +108,7 @@ impl<const N: usize, const L: usize> ReportFrame<N, L> {
         w.u8(N as u8);
         w.u16(self.node);
         w.u32(self.seq);
-        w.u8(code(self.alarm));
+        w.u8(self.alarm.map_or(0, Chart::code));
         let flags =
             self.charts
                 .iter()
@@ -185,7 +160,7 @@ impl<const N: usize, const L: usize> ReportFrame<N, L> {
         r.take::<2>()?;
         let node = r.u16()?;
         let seq = r.u32()?;
-        let alarm = chart(r.u8()?)?;
+        let alarm = Chart::from_code(r.u8()?)?;
         let flags = r.u8()?;
         if flags & !0b111 != 0 || r.u16()? != 0 {
             return None;

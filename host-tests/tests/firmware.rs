@@ -9,8 +9,6 @@
 use std::path::Path;
 use std::process::Command;
 
-use covgate::{CircleZone, ExactMoments2, Pivoted, Verdict, Watch, WatchConfig, Zone};
-
 const BOARDS: [(&str, &str); 3] = [
     ("qemu-m0", "thumbv6m-none-eabi"),
     ("qemu-m3", "thumbv7m-none-eabi"),
@@ -33,68 +31,21 @@ fn tools_missing() -> Option<String> {
         .map(|(_, t)| format!("rust target {t} not installed"))
 }
 
-/// The host run of the firmware's replay: the same code and the same settings.
+/// The firmware's own replay function, run here on the host.
 fn host_replay() -> (String, String, String) {
-    let csv = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("../fixtures/demo/drilling-cell.csv"),
+    let mut out = String::new();
+    covgate_firmware::replay(&mut out);
+    let line = |prefix: &str| {
+        out.lines()
+            .find(|l| l.starts_with(prefix))
+            .unwrap_or_else(|| panic!("host replay prints {prefix}"))
+            .to_string()
+    };
+    (
+        line("replay-int "),
+        line("replay-f32 verdicts "),
+        line("replay-f32 mean "),
     )
-    .unwrap();
-    let samples: Vec<[f32; 2]> = csv
-        .lines()
-        .skip(1)
-        .map(|l| {
-            let f: Vec<f32> = l
-                .split(',')
-                .skip(1)
-                .take(2)
-                .map(|v| v.parse().unwrap())
-                .collect();
-            [f[0], f[1]]
-        })
-        .collect();
-    let mut ex = Pivoted::with_pivot(ExactMoments2::new(), [0i32, 0]);
-    for x in &samples {
-        ex.push([x[0] as i32, x[1] as i32]).unwrap();
-    }
-    let (s, p) = (ex.inner().sums(), ex.inner().products());
-    let int = format!(
-        "replay-int n {} sums {} {} products {} {} {}",
-        ex.count(),
-        s[0],
-        s[1],
-        p[0],
-        p[1],
-        p[2]
-    );
-    let mut cfg = WatchConfig::<f32, 2>::new(100, 0.0027);
-    cfg.zone = Some(Zone::Circle(CircleZone::new([0.0, 0.0], 60.0).unwrap()));
-    cfg.mewma = Some((0.1, 12.34, false));
-    let mut w = Watch::<f32, 2, 128>::new(cfg).unwrap();
-    let mut verdicts = String::from("replay-f32 verdicts ");
-    for x in &samples {
-        let st = w.push(*x);
-        verdicts.push(match (st.alarm.is_some(), st.verdict) {
-            (true, _) => 'A',
-            (_, Verdict::Go(_)) => 'G',
-            (_, Verdict::NotReady) => 'L',
-            (_, Verdict::NoGo(_)) => 'N',
-        });
-        if st.alarm.is_some() {
-            w.acknowledge();
-        }
-    }
-    let b = w.monitor().unwrap().gate().baseline();
-    let c = b.covariance();
-    let m = b.mean();
-    let stats = format!(
-        "replay-f32 mean {:08x} {:08x} cov {:08x} {:08x} {:08x}",
-        m[0].to_bits(),
-        m[1].to_bits(),
-        c.matrix()[0][0].to_bits(),
-        c.matrix()[0][1].to_bits(),
-        c.matrix()[1][1].to_bits()
-    );
-    (int, verdicts, stats)
 }
 
 #[test]

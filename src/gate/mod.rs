@@ -119,6 +119,35 @@ pub enum Chart {
     Fault,
 }
 
+impl Chart {
+    /// The one-byte code of snapshots and report frames: 1 gate, 2 MEWMA, 3 MCUSUM,
+    /// 4 dispersion, 5 subgroup, 6 fault (0 stands for "no alarm").
+    pub fn code(self) -> u8 {
+        match self {
+            Chart::Gate => 1,
+            Chart::Mewma => 2,
+            Chart::Mcusum => 3,
+            Chart::Dispersion => 4,
+            Chart::Subgroup => 5,
+            Chart::Fault => 6,
+        }
+    }
+
+    /// `Some(None)` for 0, `Some(Some(chart))` for a chart's code, `None` for anything else.
+    pub fn from_code(code: u8) -> Option<Option<Chart>> {
+        Some(match code {
+            0 => None,
+            1 => Some(Chart::Gate),
+            2 => Some(Chart::Mewma),
+            3 => Some(Chart::Mcusum),
+            4 => Some(Chart::Dispersion),
+            5 => Some(Chart::Subgroup),
+            6 => Some(Chart::Fault),
+            _ => return None,
+        })
+    }
+}
+
 /// Why a sample is no-go.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]

@@ -103,31 +103,6 @@ impl fmt::Display for SnapshotError {
 
 impl core::error::Error for SnapshotError {}
 
-fn chart_code(c: Option<Chart>) -> u8 {
-    match c {
-        None => 0,
-        Some(Chart::Gate) => 1,
-        Some(Chart::Mewma) => 2,
-        Some(Chart::Mcusum) => 3,
-        Some(Chart::Dispersion) => 4,
-        Some(Chart::Subgroup) => 5,
-        Some(Chart::Fault) => 6,
-    }
-}
-
-fn chart_from(code: u8) -> Result<Option<Chart>, SnapshotError> {
-    Ok(match code {
-        0 => None,
-        1 => Some(Chart::Gate),
-        2 => Some(Chart::Mewma),
-        3 => Some(Chart::Mcusum),
-        4 => Some(Chart::Dispersion),
-        5 => Some(Chart::Subgroup),
-        6 => Some(Chart::Fault),
-        _ => return Err(SnapshotError::BadValue),
-    })
-}
-
 impl<const N: usize> Monitor<f32, N> {
     /// Writes the snapshot into `out`; returns its length ([`snapshot_len`]`(N)`).
     pub fn encode_snapshot(&self, out: &mut [u8]) -> Result<usize, SnapshotError> {
@@ -152,7 +127,7 @@ impl<const N: usize> Monitor<f32, N> {
         w.u8(VERSION);
         w.u8(N as u8);
         w.u8(flags);
-        w.u8(chart_code(self.alarm.map(|a| a.chart)));
+        w.u8(self.alarm.map_or(0, |a| a.chart.code()));
         w.u32(m);
         w.u32(self.samples);
         w.f32(alpha);
@@ -262,9 +237,8 @@ fn decode_fields<const N: usize>(bytes: &[u8]) -> Option<Result<Monitor<f32, N>,
     let mut r = Reader::new(bytes);
     r.take::<6>()?;
     let flags = r.u8()?;
-    let alarm_chart = match chart_from(r.u8()?) {
-        Ok(c) => c,
-        Err(e) => return Some(Err(e)),
+    let Some(alarm_chart) = Chart::from_code(r.u8()?) else {
+        return bad;
     };
     let m = r.u32()?;
     let samples = r.u32()?;

@@ -138,7 +138,9 @@ fn samples() -> impl Iterator<Item = [f32; 2]> {
     })
 }
 
-fn replay<W: Write>(out: &mut W) {
+/// The demo capture through the integer and the f32 paths, printed as `replay-...` lines (the
+/// host test runs this same function on the host and compares).
+pub fn replay<W: Write>(out: &mut W) {
     // Integer path: exact sums of the integer micrometres, pivot at the nominal (0, 0).
     let mut ex = Pivoted::with_pivot(ExactMoments2::new(), [0i32, 0]);
     for x in samples() {
@@ -452,4 +454,58 @@ pub fn exercise_everything(seed: u32) -> u32 {
         acc += u32::from(covgate::ReportFrame2::decode(black_box(&fb)).is_ok());
     }
     acc
+}
+
+/// What every emulated board's `main` does: SysTick on the core clock as the tick source,
+/// the semihosting console as output, [`run`], and a semihosting exit with the result.
+#[cfg(target_arch = "arm")]
+pub mod board {
+    use core::fmt::Write;
+
+    use cortex_m::peripheral::syst::SystClkSource;
+    use cortex_m::peripheral::SYST;
+    use cortex_m_semihosting::{debug, hio};
+
+    struct SysTick;
+
+    impl super::Ticks for SysTick {
+        fn now(&mut self) -> u32 {
+            SYST::get_current()
+        }
+        fn known_loop(&mut self, n: u32) {
+            // cortex-m's delay: a two-instruction loop run about n / 2 times.
+            cortex_m::asm::delay(n);
+        }
+    }
+
+    struct Console(Option<hio::HostStream>);
+
+    impl Write for Console {
+        fn write_str(&mut self, s: &str) -> core::fmt::Result {
+            match &mut self.0 {
+                Some(h) => h.write_str(s),
+                None => Ok(()),
+            }
+        }
+    }
+
+    /// Runs the firmware body and exits QEMU with success when every check passed.
+    pub fn run_board(name: &str) -> ! {
+        if let Some(mut p) = cortex_m::Peripherals::take() {
+            p.SYST.set_clock_source(SystClkSource::Core);
+            p.SYST.set_reload(0x00FF_FFFF);
+            p.SYST.clear_current();
+            p.SYST.enable_counter();
+        }
+        let mut out = Console(hio::hstdout().ok());
+        let fails = super::run(&mut out, &mut SysTick, name);
+        debug::exit(if fails == 0 {
+            debug::EXIT_SUCCESS
+        } else {
+            debug::EXIT_FAILURE
+        });
+        loop {
+            cortex_m::asm::wfi();
+        }
+    }
 }
