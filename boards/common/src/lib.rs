@@ -207,6 +207,61 @@ pub fn integer_step(acc: &mut ExactMoments2, gate: &IntGate2, zone: &IntZone, x:
     taken & gate.passes(&x) & zone.contains(&x)
 }
 
+/// The peer: the same 2-D update (Welford) and gate, written the straightforward way with
+/// nalgebra's generic matrices (mean vector, covariance matrix, inverse at freeze time, the
+/// quadratic form per sample). Measured beside covgate's own path.
+pub mod peer {
+    use nalgebra::{Matrix2, Vector2};
+
+    /// Running count, mean and co-moment matrix.
+    pub struct Update {
+        n: f32,
+        mean: Vector2<f32>,
+        m2: Matrix2<f32>,
+    }
+
+    impl Default for Update {
+        fn default() -> Self {
+            Update {
+                n: 0.0,
+                mean: Vector2::zeros(),
+                m2: Matrix2::zeros(),
+            }
+        }
+    }
+
+    impl Update {
+        /// Welford's update.
+        #[inline(never)]
+        pub fn push(&mut self, x: [f32; 2]) {
+            let x = Vector2::from(x);
+            self.n += 1.0;
+            let d = x - self.mean;
+            self.mean += d / self.n;
+            self.m2 += d * (x - self.mean).transpose();
+        }
+    }
+
+    /// Mean and inverse covariance, and the limit.
+    pub struct Gate {
+        /// Mean.
+        pub mean: Vector2<f32>,
+        /// Inverse covariance.
+        pub inv: Matrix2<f32>,
+        /// Limit on d^2.
+        pub limit: f32,
+    }
+
+    impl Gate {
+        /// `(x - mean)' C^-1 (x - mean) <= limit`.
+        #[inline(never)]
+        pub fn passes(&self, x: [f32; 2]) -> bool {
+            let d = Vector2::from(x) - self.mean;
+            (d.transpose() * self.inv * d)[(0, 0)] <= self.limit
+        }
+    }
+}
+
 /// Ticks of `reps` calls of `f`, minus the same loop with nothing in it.
 fn measure<C: Ticks>(clk: &mut C, reps: u32, mut f: impl FnMut(u32)) -> u32 {
     let t0 = clk.now();
@@ -241,6 +296,22 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
         let _ = black_box(&mut m).push(black_box([i as f32 * 0.25, 1.0]));
     });
     let _ = writeln!(out, "count moments-f32-update {}", per_call(t, reps));
+    let mut pu = peer::Update::default();
+    let t = measure(clk, reps, |i| {
+        black_box(&mut pu).push(black_box([i as f32 * 0.25, 1.0]));
+    });
+    let _ = writeln!(out, "count peer-nalgebra-update {}", per_call(t, reps));
+    let pg = peer::Gate {
+        mean: nalgebra::Vector2::new(1.0, 1.0),
+        inv: nalgebra::Matrix2::new(4.0f32, 2.0, 2.0, 5.0)
+            .try_inverse()
+            .unwrap_or_else(nalgebra::Matrix2::identity),
+        limit: 11.83,
+    };
+    let t = measure(clk, reps, |i| {
+        black_box(black_box(&pg).passes(black_box([i as f32 * 0.001, 1.0])));
+    });
+    let _ = writeln!(out, "count peer-nalgebra-gate {}", per_call(t, reps));
     let mut ex = ExactMoments2::new();
     let t = measure(clk, reps, |i| {
         let _ = black_box(&mut ex).push(black_box([i as i32 & 255, 7]));
