@@ -9,33 +9,8 @@ use std::hint::black_box;
 use std::time::Instant;
 
 use covgate::{CircleZone, Covariance, EllipseZone, RectZone, Zone};
+use covgate_host::quadrature::rule as gl;
 use criterion::Criterion;
-
-/// Gauss–Legendre nodes and weights on [-1, 1] (Newton on the Legendre recurrence).
-fn gl(n: usize) -> Vec<(f64, f64)> {
-    let mut out = Vec::new();
-    for i in 1..=n {
-        let mut x = (std::f64::consts::PI * (i as f64 - 0.25) / (n as f64 + 0.5)).cos();
-        let mut d = 0.0;
-        for _ in 0..100 {
-            let (mut p0, mut p1) = (1.0, x);
-            for k in 2..=n {
-                let k = k as f64;
-                let p2 = ((2.0 * k - 1.0) * x * p1 - (k - 1.0) * p0) / k;
-                p0 = p1;
-                p1 = p2;
-            }
-            d = n as f64 * (x * p1 - p0) / (x * x - 1.0);
-            let dx = p1 / d;
-            x -= dx;
-            if dx.abs() < 1e-16 {
-                break;
-            }
-        }
-        out.push((x, 2.0 / ((1.0 - x * x) * d * d)));
-    }
-    out
-}
 
 struct Normal {
     mean: [f64; 2],

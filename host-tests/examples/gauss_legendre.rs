@@ -3,39 +3,12 @@
 //!
 //!     cargo run -p covgate-host --example gauss_legendre > src/math/gauss_legendre.rs && cargo fmt --all
 //!
-//! Method: Newton's iteration on the Legendre polynomial P_n (three-term recurrence) from the
-//! starting guess cos(pi (i - 1/4) / (n + 1/2)), weights 2 / ((1 - x^2) P_n'(x)^2)
-//! (Abramowitz & Stegun 25.4.29). Converged to the last bit of f64.
+//! Nodes and weights from `covgate_host::quadrature` (Newton on P_n, A&S 25.4.29).
 
-fn legendre(n: usize, x: f64) -> (f64, f64) {
-    let (mut p0, mut p1) = (1.0, x);
-    for k in 2..=n {
-        let k = k as f64;
-        let p2 = ((2.0 * k - 1.0) * x * p1 - (k - 1.0) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-    }
-    // P_n'(x) = n (x P_n - P_{n-1}) / (x^2 - 1)
-    let d = n as f64 * (x * p1 - p0) / (x * x - 1.0);
-    (p1, d)
-}
+use covgate_host::quadrature::{legendre, node};
 
 fn rule(n: usize) -> Vec<(f64, f64)> {
-    let mut out = Vec::new();
-    for i in 1..=n / 2 {
-        let mut x = (std::f64::consts::PI * (i as f64 - 0.25) / (n as f64 + 0.5)).cos();
-        for _ in 0..100 {
-            let (p, d) = legendre(n, x);
-            let dx = p / d;
-            x -= dx;
-            if dx.abs() < 1e-17 {
-                break;
-            }
-        }
-        let (_, d) = legendre(n, x);
-        out.push((x, 2.0 / ((1.0 - x * x) * d * d)));
-    }
-    out
+    (1..=n / 2).map(|i| node(n, i)).collect()
 }
 
 fn main() {

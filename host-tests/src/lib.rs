@@ -14,6 +14,8 @@ pub mod demo;
 pub mod figure;
 pub mod fixture;
 pub mod flash;
+pub mod process;
+pub mod quadrature;
 pub mod reference;
 pub mod replay;
 pub mod seeded;

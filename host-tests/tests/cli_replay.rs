@@ -2,20 +2,11 @@
 //! figure files, and the committed demo captures equal to their generator.
 
 use std::path::{Path, PathBuf};
-use std::process::Command;
 
 use covgate_host::seeded::Rng;
 
 fn covgate(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_covgate"))
-        .args(args)
-        .output()
-        .expect("runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8(out.stdout).unwrap(),
-        String::from_utf8(out.stderr).unwrap(),
-    )
+    covgate_host::process::run(env!("CARGO_BIN_EXE_covgate"), args)
 }
 
 fn scratch(name: &str) -> PathBuf {

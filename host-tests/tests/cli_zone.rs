@@ -1,17 +1,7 @@
 //! The `covgate zone` command as a user runs it.
 
-use std::process::Command;
-
 fn run(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_covgate"))
-        .args(args)
-        .output()
-        .expect("the covgate binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8(out.stdout).unwrap(),
-        String::from_utf8(out.stderr).unwrap(),
-    )
+    covgate_host::process::run(env!("CARGO_BIN_EXE_covgate"), args)
 }
 
 fn json(args: &[&str]) -> serde_json::Value {

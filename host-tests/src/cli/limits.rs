@@ -173,39 +173,9 @@ fn chart(a: &Args) -> Result<serde_json::Value, String> {
     }
 }
 
-macro_rules! by_dim {
-    ($p:expr, $n:ident => $body:expr) => {
-        match $p {
-            1 => {
-                const $n: usize = 1;
-                $body
-            }
-            2 => {
-                const $n: usize = 2;
-                $body
-            }
-            3 => {
-                const $n: usize = 3;
-                $body
-            }
-            4 => {
-                const $n: usize = 4;
-                $body
-            }
-            5 => {
-                const $n: usize = 5;
-                $body
-            }
-            _ => {
-                const $n: usize = 6;
-                $body
-            }
-        }
-    };
-}
-
 fn dispatch_mcusum(p: u32, rng: &mut Rng, runs: u32, cap: u32, k: f64, h: f64) -> (f64, f64) {
-    by_dim!(p, D => arl::simulate::<D>(rng, runs, cap, [0.0; D], arl::mcusum_chart::<D>(k, h)))
+    // `run` checked p in 1..=6, so the fallback is never taken.
+    by_dim!(p, D => arl::simulate::<D>(rng, runs, cap, [0.0; D], arl::mcusum_chart::<D>(k, h)), _ => (f64::NAN, f64::NAN))
 }
 
 fn dispatch_dispersion(
@@ -216,5 +186,5 @@ fn dispatch_dispersion(
     lambda: f64,
     h: f64,
 ) -> (f64, f64) {
-    by_dim!(p, D => arl::simulate::<D>(rng, runs, cap, [0.0; D], arl::dispersion_chart::<D>(lambda, h)))
+    by_dim!(p, D => arl::simulate::<D>(rng, runs, cap, [0.0; D], arl::dispersion_chart::<D>(lambda, h)), _ => (f64::NAN, f64::NAN))
 }

@@ -1,5 +1,39 @@
 //! The commands of the `covgate` binary, one module each, testable without a process.
 
+/// Runs `$body` with the const `$d` set to the runtime dimension `$n` (1..=6); `$other`
+/// (binding the value) for anything else.
+macro_rules! by_dim {
+    ($n:expr, $d:ident => $body:expr, $v:pat => $other:expr) => {
+        match $n {
+            1 => {
+                const $d: usize = 1;
+                $body
+            }
+            2 => {
+                const $d: usize = 2;
+                $body
+            }
+            3 => {
+                const $d: usize = 3;
+                $body
+            }
+            4 => {
+                const $d: usize = 4;
+                $body
+            }
+            5 => {
+                const $d: usize = 5;
+                $body
+            }
+            6 => {
+                const $d: usize = 6;
+                $body
+            }
+            $v => $other,
+        }
+    };
+}
+
 pub mod demo;
 pub mod fleet;
 pub mod limits;

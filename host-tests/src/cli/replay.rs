@@ -233,38 +233,6 @@ fn chart_of(spec: &str, dim: usize) -> Result<ChartSpec, String> {
     }
 }
 
-macro_rules! by_dim {
-    ($n:expr, $d:ident => $body:expr) => {
-        match $n {
-            1 => {
-                const $d: usize = 1;
-                $body
-            }
-            2 => {
-                const $d: usize = 2;
-                $body
-            }
-            3 => {
-                const $d: usize = 3;
-                $body
-            }
-            4 => {
-                const $d: usize = 4;
-                $body
-            }
-            5 => {
-                const $d: usize = 5;
-                $body
-            }
-            6 => {
-                const $d: usize = 6;
-                $body
-            }
-            n => Err(format!("--columns: {n} columns; 1 to 6 are supported")),
-        }
-    };
-}
-
 /// Resolved settings: file config under flags.
 pub struct Resolved {
     /// Output folder.
@@ -342,7 +310,7 @@ pub fn run(a: &Args) -> Result<serde_json::Value, String> {
             .map(|v| std::array::from_fn(|i| v[i] as f32))
             .collect();
         replay::run_with_progress::<D>(&samples, &r.settings, |_| bar.inc(1))
-    })?;
+    }, n => Err(format!("--columns: {n} columns; 1 to 6 are supported")))?;
     bar.finish_and_clear();
     let summary = summary_json(&a.capture, &r, &outcome);
     write_folder(&r.out, &cap, &outcome, &r, &summary)?;
