@@ -138,6 +138,7 @@ fn int_gate_agreement_on_a_dense_grid() {
             let d2 = g.baseline().mahalanobis2(&[f64::from(x), f64::from(y)]);
             let fv = d2 <= h;
             let iv = ig.passes(&[x, y]);
+            assert_eq!(iv, ig.passes_exact(&[x, y]), "filter at ({x}, {y})");
             total += 1;
             inside += u64::from(fv);
             if (d2 - h).abs() <= ig.band() {
@@ -185,6 +186,41 @@ fn int_gate_agreement_on_random_baselines() {
                 let d2 = reference::mahalanobis2(&mean, &c, &x).unwrap();
                 if (d2 - h).abs() > ig.band() {
                     prop_assert_eq!(d2 <= h, ig.passes(&xi), "x {:?} d2 {} h {}", x, d2, h);
+                }
+            }
+            Ok(())
+        },
+    );
+}
+
+#[test]
+fn int_gate_filter_never_overrides_the_exact_test() {
+    // Spreads from a fraction of a count to 10^7 counts (where the 32-bit filter switches
+    // off), points on and around the boundary and anywhere in a wide box.
+    let point = (0.0..std::f64::consts::TAU, 0.0..3.0f64, 0.97..1.03f64);
+    check(
+        "int_gate_filter",
+        512,
+        (
+            cov2(),
+            -3.0..10.0f64,
+            -1e8..1e8f64,
+            prop::collection::vec(point, 96),
+        ),
+        |(c, scale, off, pts)| {
+            let c = c.map(|r| r.map(|v| v * 10f64.powf(scale)));
+            let mean = [off, -0.61 * off + 17.2];
+            let (g, ig) = int_and_float(mean, c, 0.0027);
+            let b = reference::cholesky(&c).unwrap();
+            let h = g.limit().sqrt();
+            for (t, wide, near) in pts {
+                for r in [wide, near] {
+                    let z = [r * h * t.cos(), r * h * t.sin()];
+                    let x = [
+                        (mean[0] + b[0][0] * z[0]).round() as i32,
+                        (mean[1] + b[1][0] * z[0] + b[1][1] * z[1]).round() as i32,
+                    ];
+                    prop_assert_eq!(ig.passes(&x), ig.passes_exact(&x), "x {:?}", x);
                 }
             }
             Ok(())

@@ -325,6 +325,38 @@ fn positional_tolerance_examples() {
 }
 
 #[test]
+fn int_circle_exact_across_the_16_bit_switch() {
+    // Offsets up to 2^15 are tested in 32 bits, wider ones in 64: both must equal the exact
+    // test 4 (dx^2 + dy^2) <= D^2 (here in i128), around the boundary and around the switch.
+    let centres = [[0, 0], [-7, 3], [i32::MAX - 40_000, i32::MIN + 40_000]];
+    let diameters = [1u32, 2, 3, 65_535, 65_536, 65_537, 92_681, 131_071, 131_073, 1 << 30];
+    for c in centres {
+        for d in diameters {
+            let z = IntCircle::new(c, d).unwrap();
+            let r = i64::from(d) / 2;
+            let mut offsets: Vec<i64> = Vec::new();
+            for base in [0, r, 1 << 15, 46_341] {
+                for k in -3..=3 {
+                    offsets.push(base + k);
+                    offsets.push(-base + k);
+                }
+            }
+            for &dx in &offsets {
+                for &dy in &offsets {
+                    let (x, y) = (i64::from(c[0]) + dx, i64::from(c[1]) + dy);
+                    let (Ok(x), Ok(y)) = (i32::try_from(x), i32::try_from(y)) else {
+                        continue;
+                    };
+                    let want = 4 * (i128::from(dx).pow(2) + i128::from(dy).pow(2))
+                        <= i128::from(d).pow(2);
+                    assert_eq!(z.contains(&[x, y]), want, "centre {c:?} d {d} at ({dx}, {dy})");
+                }
+            }
+        }
+    }
+}
+
+#[test]
 fn monte_carlo_cross_check() {
     // 10^6 seeded draws per zone; the computed probability must lie in the 99.9 % binomial
     // interval of the observed fraction.

@@ -33,6 +33,101 @@ pub struct IntGate<const N: usize, const L: usize> {
     lin: [i64; N],
     threshold: i64,
     band: f64,
+    coarse: Coarse<N, L>,
+}
+
+/// The same quadratic form with coefficients scaled to fit `i32` arithmetic, used as a filter
+/// in front of the exact `i64` test: a core without a 64-bit multiply (Cortex-M0) decides
+/// almost every sample with a few 32-bit multiplies. The filter answers only when its value
+/// `c` is so far from the limit that the exact test must agree (`c <= inside` passes,
+/// `c > outside` fails); in between, and for samples beyond `reach`, the exact test decides.
+/// So the verdict is always the exact test's; only the cost changes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+struct Coarse<const N: usize, const L: usize> {
+    reach: [u32; N],
+    quad: [i32; L],
+    lin: [i32; N],
+    inside: i32,
+    outside: i32,
+}
+
+impl<const N: usize, const L: usize> Coarse<N, L> {
+    /// A filter that never answers (every sample goes to the exact test).
+    const OFF: Self = Coarse {
+        reach: [0; N],
+        quad: [0; L],
+        lin: [0; N],
+        inside: i32::MIN,
+        outside: i32::MAX,
+    };
+
+    /// Scale `K` = the largest power of two with `K size + err <= 2^30`, so every partial sum
+    /// of the rounded form stays below 2^30 for samples within reach. With `Q` the exact form
+    /// and `E = err`, `|c - K Q| <= E`, and the exact test's own rounding is below `E + 1` at
+    /// its (larger) scale; hence `c <= K rest - 2E - 1` implies a pass and `c > K rest + 2E`
+    /// a failure.
+    fn new(
+        reach: &[f64; N],
+        quad: &[f64; L],
+        lin: &[f64; N],
+        rest: f64,
+        size: f64,
+        err: f64,
+    ) -> Self {
+        const ROOM: f64 = 1_073_741_824.0; // 2^30
+        let fits = reach.iter().all(|&u| u * u <= ROOM) && 4.0 * err + 4.0 < ROOM;
+        if !(fits && size > 0.0 && size.is_finite()) {
+            return Self::OFF;
+        }
+        let mut k = libm::floor(libm::log2((ROOM - err) / size)) as i32;
+        while libm::scalbn(size, k) + err > ROOM {
+            k -= 1;
+        }
+        let scale = libm::scalbn(1.0, k);
+        let round = |v: f64| libm::round(v * scale) as i32;
+        let mut out = Self::OFF;
+        for (o, &u) in out.reach.iter_mut().zip(reach.iter()) {
+            *o = u as u32;
+        }
+        for (o, &v) in out.quad.iter_mut().zip(quad.iter()) {
+            *o = round(v);
+        }
+        for (o, &v) in out.lin.iter_mut().zip(lin.iter()) {
+            *o = round(v);
+        }
+        let centre = rest * scale;
+        out.inside = (libm::floor(centre - 2.0 * err - 1.0) - 1.0) as i32;
+        out.outside = (libm::ceil(centre + 2.0 * err) + 1.0) as i32;
+        out
+    }
+
+    /// `Some(verdict)` when the filter is sure, `None` when the exact test must decide.
+    #[inline(always)]
+    fn decide(&self, x: &[i32; N], pivot: &[i32; N]) -> Option<bool> {
+        let mut u = [0i32; N];
+        for i in 0..N {
+            match x[i].checked_sub(pivot[i]) {
+                Some(d) if d.unsigned_abs() <= self.reach[i] => u[i] = d,
+                _ => return None,
+            }
+        }
+        // Within reach every product and partial sum is below 2^30 in size (see `new`).
+        let mut c = 0i32;
+        for ((i, j), &a) in pairs::<N>().zip(self.quad.iter()) {
+            c = c.wrapping_add(a.wrapping_mul(u[i].wrapping_mul(u[j])));
+        }
+        for (&d, &ui) in self.lin.iter().zip(u.iter()) {
+            c = c.wrapping_add(d.wrapping_mul(ui));
+        }
+        if c <= self.inside {
+            Some(true)
+        } else if c > self.outside {
+            Some(false)
+        } else {
+            None
+        }
+    }
 }
 
 /// The 2-D integer gate.
@@ -158,6 +253,7 @@ impl<const N: usize, const L: usize> IntGate<N, L> {
         }
         let threshold = round_to_i64(libm::floor(rest * scale))?;
         let band = (err + 1.0) / scale + 8.0 * N as f64 * f64::EPSILON * h / rcond;
+        let coarse = Coarse::new(&reach_f, &quad_f, &lin_f, rest, size, err);
         Ok(IntGate {
             pivot,
             reach,
@@ -165,12 +261,24 @@ impl<const N: usize, const L: usize> IntGate<N, L> {
             lin,
             threshold,
             band,
+            coarse,
         })
     }
 
-    /// The per-sample test: `true` when the sample is inside the gate. Integer operations only.
+    /// The per-sample test: `true` when the sample is inside the gate. Integer operations only:
+    /// a 32-bit filter decides every sample not within a narrow band of the limit, the exact
+    /// 64-bit form the rest (the verdict is the exact form's either way).
     #[inline]
     pub fn passes(&self, x: &[i32; N]) -> bool {
+        match self.coarse.decide(x, &self.pivot) {
+            Some(v) => v,
+            None => self.passes_exact(x),
+        }
+    }
+
+    /// The exact `i64` test alone (what [`passes`](Self::passes) falls back to).
+    #[inline(never)]
+    pub fn passes_exact(&self, x: &[i32; N]) -> bool {
         let mut u = [0i64; N];
         for i in 0..N {
             let d = i64::from(x[i]) - i64::from(self.pivot[i]);

@@ -23,6 +23,26 @@ pub struct ExactMoments<const N: usize, const L: usize> {
     prod: [i64; L],
 }
 
+/// `a b` exactly. Samples within the 16-bit range (`|a|, |b| <= 2^15`) multiply in `i32`,
+/// where the product fits (at most 2^30): a core without a 32 x 32 -> 64 multiply (Cortex-M0)
+/// then needs no call to its 64-bit multiply routine. Wider samples take the `i64` product.
+#[inline(always)]
+fn product(a: i32, b: i32) -> i64 {
+    let small = |v: i32| v.unsigned_abs() <= 1 << 15;
+    if small(a) && small(b) {
+        i64::from(a * b)
+    } else {
+        wide_product(a, b)
+    }
+}
+
+/// Out of line so that the compiler cannot compute it speculatively on the narrow path.
+#[cold]
+#[inline(never)]
+fn wide_product(a: i32, b: i32) -> i64 {
+    i64::from(a) * i64::from(b)
+}
+
 impl<const N: usize, const L: usize> Default for ExactMoments<N, L> {
     fn default() -> Self {
         Self::new()
@@ -49,8 +69,7 @@ impl<const N: usize, const L: usize> ExactMoments<N, L> {
         }
         let mut prod = self.prod;
         for ((i, j), p) in pairs::<N>().zip(prod.iter_mut()) {
-            let xy = i64::from(x[i]) * i64::from(x[j]);
-            *p = p.checked_add(xy).ok_or(SampleError::Overflow)?;
+            *p = p.checked_add(product(x[i], x[j])).ok_or(SampleError::Overflow)?;
         }
         *self = ExactMoments { count, sum, prod };
         Ok(())

@@ -40,6 +40,18 @@ impl IntRect {
 pub struct IntCircle {
     centre: [i32; 2],
     d2: i64,
+    /// `floor(D2 / 4)` capped at `u32::MAX`: `4 s <= D2` exactly when `s <= floor(D2 / 4)`.
+    quarter: u32,
+}
+
+impl IntCircle {
+    fn with_d2(centre: [i32; 2], d2: i64) -> Self {
+        IntCircle {
+            centre,
+            d2,
+            quarter: u32::try_from(d2 / 4).unwrap_or(u32::MAX),
+        }
+    }
 }
 
 impl IntCircle {
@@ -52,10 +64,10 @@ impl IntCircle {
         if diameter >= 1 << 31 {
             return Err(ZoneError::NotIntegral);
         }
-        Ok(IntCircle {
+        Ok(Self::with_d2(
             centre,
-            d2: i64::from(diameter) * i64::from(diameter),
-        })
+            i64::from(diameter) * i64::from(diameter),
+        ))
     }
 
     /// From a float circle whose centre is an integer point and whose diameter is below 2^26
@@ -73,16 +85,28 @@ impl IntCircle {
         let e = libm::fma(d, d, -p);
         let fl = libm::floor(p);
         let d2 = if fl == p && e < 0.0 { fl - 1.0 } else { fl };
-        Ok(IntCircle {
-            centre: [c[0] as i32, c[1] as i32],
-            d2: d2 as i64,
-        })
+        Ok(Self::with_d2([c[0] as i32, c[1] as i32], d2 as i64))
     }
 
-    /// Point test, integer multiply-adds only. The diameter is below 2^31, so a point with
-    /// `|dx|` or `|dy|` of 2^30 or more is outside; below that, `4 (dx^2 + dy^2) < 2^63`.
+    /// Point test, integer multiply-adds only. Offsets within the 16-bit range are tested in
+    /// 32-bit arithmetic (`dx^2 + dy^2 <= 2^31`, against `floor(D2 / 4)`); wider ones in
+    /// `i64`. Both are exact.
     #[inline]
     pub fn contains(&self, x: &[i32; 2]) -> bool {
+        let small = |v: i32, c: i32| match v.checked_sub(c) {
+            Some(d) if d.unsigned_abs() <= 1 << 15 => Some(d.unsigned_abs()),
+            _ => None,
+        };
+        match (small(x[0], self.centre[0]), small(x[1], self.centre[1])) {
+            (Some(dx), Some(dy)) => dx * dx + dy * dy <= self.quarter,
+            _ => self.contains_wide(x),
+        }
+    }
+
+    /// The `i64` test. The diameter is below 2^31, so a point with `|dx|` or `|dy|` of 2^30 or
+    /// more is outside; below that, `4 (dx^2 + dy^2) < 2^63`.
+    #[inline(never)]
+    fn contains_wide(&self, x: &[i32; 2]) -> bool {
         let dx = i64::from(x[0]) - i64::from(self.centre[0]);
         let dy = i64::from(x[1]) - i64::from(self.centre[1]);
         let reach = 1i64 << 30;
