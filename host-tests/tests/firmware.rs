@@ -6,6 +6,7 @@
 //!
 //! `cargo test -p covgate-host --test firmware -- --nocapture` prints the instruction counts.
 
+use covgate_host::reference;
 use std::path::Path;
 use std::process::Command;
 
@@ -29,6 +30,61 @@ fn tools_missing() -> Option<String> {
         .iter()
         .find(|(_, t)| !list.contains(t))
         .map(|(_, t)| format!("rust target {t} not installed"))
+}
+
+/// The f32 values of a line of hexadecimal bit patterns after `prefix`, skipping words that
+/// are not 8-digit hex (labels such as `mean`, counts).
+fn f32_bits(line: &str, prefix: &str) -> Vec<f64> {
+    line[prefix.len()..]
+        .split_whitespace()
+        .filter(|w| w.len() == 8)
+        .filter_map(|w| u32::from_str_radix(w, 16).ok())
+        .map(|b| f64::from(f32::from_bits(b)))
+        .collect()
+}
+
+/// The board's f32 statistics against an independent f64 reference (two-pass compensated
+/// mean and covariance; Gaussian elimination for d^2), with stated tolerances:
+/// mean and covariance within 2e-6 relative to the spread (sd, sqrt(c_ii c_jj)), d^2 within
+/// 2e-6 relative + 1e-6 absolute. Returns the worst errors found.
+fn f32_against_reference(board: &str, lines: &[&str]) -> (f64, f64, f64) {
+    let find = |p: &str| {
+        lines
+            .iter()
+            .find(|l| l.starts_with(p))
+            .unwrap_or_else(|| panic!("{board} prints {p}"))
+            .to_string()
+    };
+    let xs: Vec<[f64; 2]> = covgate_firmware::samples()
+        .map(|x| [f64::from(x[0]), f64::from(x[1])])
+        .collect();
+    let r = reference::moments(&xs);
+    let rc = r.sample_cov();
+    let got = f32_bits(&find("replay-f32 summary "), "replay-f32 summary ");
+    assert_eq!(got.len(), 5, "{board}: summary line");
+    let sd = [rc[0][0].sqrt(), rc[1][1].sqrt()];
+    let mean_err = (0..2)
+        .map(|i| (got[i] - r.mean[i]).abs() / sd[i])
+        .fold(0.0, f64::max);
+    let cov_err = [(0, 0, 2), (0, 1, 3), (1, 1, 4)]
+        .iter()
+        .map(|&(i, j, k)| (got[k] - rc[i][j]).abs() / (sd[i] * sd[j]))
+        .fold(0.0, f64::max);
+    assert!(mean_err < 2e-6, "{board}: f32 mean off by {mean_err:e} sd");
+    assert!(cov_err < 2e-6, "{board}: f32 covariance off by {cov_err:e}");
+    // d^2 of every sample against the board's learned baseline, recomputed in f64.
+    let base = f32_bits(&find("replay-f32 mean "), "replay-f32 mean ");
+    let d2 = f32_bits(&find("replay-f32 d2"), "replay-f32 d2");
+    assert_eq!(d2.len(), xs.len(), "{board}: one d^2 per sample");
+    let (m, c) = ([base[0], base[1]], [[base[2], base[3]], [base[3], base[4]]]);
+    let mut d2_err: f64 = 0.0;
+    for (x, &g) in xs.iter().zip(d2.iter()) {
+        let want = reference::mahalanobis2(&m, &c, x).unwrap();
+        let e = (g - want).abs() / (want + 0.5);
+        assert!(e < 2e-6, "{board}: d^2 at {x:?}: f32 {g}, f64 {want}");
+        d2_err = d2_err.max(e);
+    }
+    (mean_err, cov_err, d2_err)
 }
 
 /// The firmware's own replay function, run here on the host.
@@ -58,6 +114,9 @@ fn firmware_runs_on_three_cores_and_matches_the_host() {
         return;
     }
     let (int, verdicts, stats) = host_replay();
+    let mut host_out = String::new();
+    covgate_firmware::replay(&mut host_out);
+    let host_lines: Vec<String> = host_out.lines().map(str::to_string).collect();
     let boards = Path::new(env!("CARGO_MANIFEST_DIR")).join("../boards");
     let mut table = Vec::new();
     for (board, _) in BOARDS {
@@ -93,6 +152,15 @@ fn firmware_runs_on_three_cores_and_matches_the_host() {
             lines.contains(&stats.as_str()),
             "{board}: f32 statistics differ\nhost: {stats}\n{stdout}"
         );
+        for p in ["replay-f32 d2", "replay-f32 summary "] {
+            let host = host_lines.iter().find(|l| l.starts_with(p));
+            assert!(
+                host.is_some_and(|h| lines.contains(&h.as_str())),
+                "{board}: {p} differs from the host"
+            );
+        }
+        let (me, ce, de) = f32_against_reference(board, &lines);
+        println!("{board}: f32 vs f64 reference: mean {me:.1e} sd, covariance {ce:.1e}, d^2 {de:.1e} (relative + 1e-6 absolute); tolerance 2e-6");
         for l in lines.iter().filter(|l| l.starts_with("count ")) {
             let f: Vec<&str> = l.split_whitespace().collect();
             table.push((board, f[1].to_string(), f[2].parse::<u64>().unwrap()));

@@ -2,8 +2,7 @@
 //! correlation `r`.
 
 use super::gauss_legendre::{GL10, GL12, GL20, GL5, GL5_CENTRE, GL6};
-use super::normal::{norm_cdf, norm_sf};
-use super::Real;
+use super::{Precision, Real};
 
 const TWO_PI: f64 = core::f64::consts::TAU;
 
@@ -33,65 +32,107 @@ pub fn bvn_upper_f64(h: f64, k: f64, r: f64) -> f64 {
 /// `P(X > h, Y > k)` in single precision.
 ///
 /// Method: Drezner & Wesolowsky (1990), J. Statist. Comput. Simul. 35: Gauss–Legendre with
-/// 5 points for `|r| < 0.8` (here in Genz's `asin` form, which needs no square root per node),
-/// and the same high-`|r|` expansion as [`bvn_upper_f64`] with 10 points above. Absolute error
-/// below 2e-6 (tested against mpmath).
+/// 5 points for `|r| < 0.8` (here in Genz's `asin` form, which needs no square root per node;
+/// see [`Orthant`]), and the same high-`|r|` expansion as [`bvn_upper_f64`] with 10 points
+/// above. Absolute error below 2e-6 (tested against mpmath).
 pub fn bvn_upper_f32(h: f32, k: f32, r: f32) -> f32 {
     if r.abs() < 0.8 {
-        bvn_upper_low5(h, k, r)
+        Orthant::new(r).upper(h, k, upper_tail(h), upper_tail(k))
     } else {
         bvn_upper(h, k, r, &GL10, 0.8)
     }
 }
 
-/// The 5-point low-`|r|` rule (odd order: centre node included).
-fn bvn_upper_low5<T: Real>(h: T, k: T, r: T) -> T {
-    if h.is_nan() || k.is_nan() || r.is_nan() {
-        return h + k + r;
+/// `P(Z > x)` through the precision's tail kernel.
+fn upper_tail<T: Precision>(x: T) -> T {
+    T::normal_tails(x).1
+}
+
+/// Orthant probabilities for one correlation, prepared once for the several orthants of a
+/// rectangle. With the 5-point low-correlation rule (`f32`, `|r| < 0.8`) the nodes
+/// `sin(asin(r) (1 +- x_i) / 2)` and `1 / (1 - sin^2)` depend on `r` alone, so each orthant
+/// costs nine exponentials; otherwise it calls [`Precision::bvn_upper`].
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct Orthant<T> {
+    r: T,
+    low: bool,
+    asr: T,
+    /// `(sin, 1 / (1 - sin^2), weight)` per node.
+    nodes: [(T, T, T); 9],
+}
+
+impl<T: Precision> Orthant<T> {
+    pub(crate) fn new(r: T) -> Self {
+        let low = T::LOW5 && r.abs() < T::from_f64(0.8);
+        let mut o = Orthant {
+            r,
+            low,
+            asr: T::ZERO,
+            nodes: [(T::ZERO, T::ZERO, T::ZERO); 9],
+        };
+        if low {
+            o.asr = r.asin() * T::from_f64(0.5);
+            let node = |x: f64, w: f64| {
+                let sn = T::node_sin(o.asr * T::from_f64(x));
+                (sn, T::ONE / (T::ONE - sn * sn), T::from_f64(w))
+            };
+            o.nodes[0] = node(1.0, GL5_CENTRE);
+            for (i, &(x, w)) in GL5.iter().enumerate() {
+                o.nodes[2 * i + 1] = node(1.0 - x, w);
+                o.nodes[2 * i + 2] = node(1.0 + x, w);
+            }
+        }
+        o
     }
-    if let Some(p) = infinite_limits(h, k) {
-        return p;
+
+    /// `P(X > h, Y > k)`, given the margins' tails `qh = P(Z > h)` and `qk = P(Z > k)` (which
+    /// a rectangle shares between its orthants).
+    pub(crate) fn upper(&self, h: T, k: T, qh: T, qk: T) -> T {
+        if !self.low {
+            return T::bvn_upper(h, k, self.r);
+        }
+        if h.is_nan() || k.is_nan() {
+            return h + k;
+        }
+        if let Some(p) = infinite_limits(h, k, qh, qk) {
+            return p;
+        }
+        let hk = h * k;
+        let hs = (h * h + k * k) * T::from_f64(0.5);
+        let mut s = T::ZERO;
+        for &(sn, inv, w) in self.nodes.iter() {
+            s += w * T::node_exp((sn * hk - hs) * inv);
+        }
+        clamp01(s * self.asr / T::from_f64(TWO_PI) + qh * qk)
     }
-    let half = T::from_f64(0.5);
-    let hk = h * k;
-    let hs = (h * h + k * k) * half;
-    let asr = r.asin() * half;
-    let node = |x: T| {
-        let sn = (asr * x).sin();
-        ((sn * hk - hs) / (T::ONE - sn * sn)).exp()
-    };
-    let mut s = T::from_f64(GL5_CENTRE) * node(T::ONE);
-    for &(x, w) in GL5.iter() {
-        let (x, w) = (T::from_f64(x), T::from_f64(w));
-        s += w * (node(T::ONE - x) + node(T::ONE + x));
-    }
-    clamp01(s * asr / T::from_f64(TWO_PI) + norm_sf(h) * norm_sf(k))
 }
 
 fn clamp01<T: Real>(p: T) -> T {
     p.max(T::ZERO).min(T::ONE)
 }
 
-/// `Some` for an infinite limit: the orthant is empty or one-dimensional.
-fn infinite_limits<T: Real>(h: T, k: T) -> Option<T> {
+/// `Some` for an infinite limit: the orthant is empty or one-dimensional (`qh`, `qk` the
+/// margins' upper tails).
+fn infinite_limits<T: Real>(h: T, k: T, qh: T, qk: T) -> Option<T> {
     let inf = T::from_f64(f64::INFINITY);
     if h == inf || k == inf {
         Some(T::ZERO)
     } else if h == -inf {
-        Some(if k == -inf { T::ONE } else { norm_sf(k) })
+        Some(if k == -inf { T::ONE } else { qk })
     } else if k == -inf {
-        Some(norm_sf(h))
+        Some(qh)
     } else {
         None
     }
 }
 
 /// The shared body: Plackett integral for `|r| < split`, high-`|r|` expansion above.
-fn bvn_upper<T: Real>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
+fn bvn_upper<T: Precision>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
     if h.is_nan() || k.is_nan() || r.is_nan() {
         return h + k + r;
     }
-    if let Some(p) = infinite_limits(h, k) {
+    let (qh, qk) = (upper_tail(h), upper_tail(k));
+    if let Some(p) = infinite_limits(h, k, qh, qk) {
         return p;
     }
     let half = T::from_f64(0.5);
@@ -104,14 +145,14 @@ fn bvn_upper<T: Real>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
         let asr = r.asin() * half;
         let node = |x: T| {
             let sn = (asr * x).sin();
-            ((sn * hk - hs) / (one - sn * sn)).exp()
+            T::node_exp((sn * hk - hs) / (one - sn * sn))
         };
         let mut s = T::ZERO;
         for &(x, w) in rule.iter() {
             let (x, w) = (T::from_f64(x), T::from_f64(w));
             s += w * (node(one - x) + node(one + x));
         }
-        return clamp01(s * asr / two_pi + norm_sf(h) * norm_sf(k));
+        return clamp01(s * asr / two_pi + qh * qk);
     }
     // Genz (2004), section 2.2: expansion about |r| = 1 (after Drezner & Wesolowsky 1990).
     let mut kk = k;
@@ -130,13 +171,16 @@ fn bvn_upper<T: Real>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
         let asr = -(bs / as_ + hk) * half;
         if asr > lim {
             bvn = a
-                * asr.exp()
+                * T::node_exp(asr)
                 * (one - c * (bs - as_) * (one - d * bs) / T::from_f64(3.0) + c * d * as_ * as_);
         }
         if hk > lim {
             let b = bs.sqrt();
-            let sp = T::from_f64(TWO_PI.sqrt()) * norm_cdf(-b / a);
-            bvn -= (-hk * half).exp() * sp * b * (one - c * bs * (one - d * bs) / T::from_f64(3.0));
+            let sp = T::from_f64(TWO_PI.sqrt()) * T::normal_tails(-b / a).0;
+            bvn -= T::node_exp(-hk * half)
+                * sp
+                * b
+                * (one - c * bs * (one - d * bs) / T::from_f64(3.0));
         }
         a *= half;
         let mut s = T::ZERO;
@@ -149,22 +193,23 @@ fn bvn_upper<T: Real>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
                 if asr > lim {
                     let sp = one + c * xs * (one + T::from_f64(5.0) * d * xs);
                     let rs = (one - xs).sqrt();
-                    let ep = (-(hk * half) * xs / ((one + rs) * (one + rs))).exp() / rs;
-                    s += w * asr.exp() * (sp - ep);
+                    let ep = T::node_exp(-(hk * half) * xs / ((one + rs) * (one + rs))) / rs;
+                    s += w * T::node_exp(asr) * (sp - ep);
                 }
             }
         }
         bvn = (a * s - bvn) / two_pi;
     }
     if r > T::ZERO {
-        bvn += norm_sf(h.max(kk));
+        bvn += upper_tail(h.max(kk));
     } else if h >= kk {
         bvn = -bvn;
     } else {
+        let (tk, th) = (T::normal_tails(kk), T::normal_tails(h));
         let l = if h < T::ZERO {
-            norm_cdf(kk) - norm_cdf(h)
+            tk.0 - th.0
         } else {
-            norm_sf(h) - norm_sf(kk)
+            th.1 - tk.1
         };
         bvn = l - bvn;
     }

@@ -7,6 +7,7 @@ mod bvn;
 mod chi2;
 mod chi2_table;
 mod error;
+pub mod fast32;
 pub mod gauss_legendre;
 mod linalg;
 mod normal;
@@ -15,6 +16,7 @@ mod real;
 pub(crate) mod root;
 
 pub use beta::{phase1_limit, phase2_limit, phase2_tail, subgroup_limit, Beta, FDist};
+pub(crate) use bvn::Orthant;
 pub use bvn::{bvn_upper_f32, bvn_upper_f64};
 pub use chi2::ChiSquare;
 pub use chi2_table::{Chi2Table, CHI2_LIMITS};

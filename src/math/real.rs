@@ -33,6 +33,10 @@ pub trait Real:
     const ONE: Self;
     /// Machine epsilon (distance from 1 to the next larger value).
     const EPSILON: Self;
+    /// `true` when this target does arithmetic of this type in hardware (`false` for both
+    /// types on an Arm core without FPU, and for `f64` on an Arm core with a single-precision
+    /// FPU). Hot paths pick between float and bit-level tests with it.
+    const NATIVE: bool;
 
     /// Nearest value of this type to `x` (round to nearest even; `f64` is the identity).
     fn from_f64(x: f64) -> Self;
@@ -77,13 +81,14 @@ pub trait Real:
 }
 
 macro_rules! impl_real {
-    ($t:ty, $sqrt:path, $atan2:path, $hypot:path, $fmax:path, $fmin:path, $fabs:path,
+    ($t:ty, $native:expr, $sqrt:path, $atan2:path, $hypot:path, $fmax:path, $fmin:path, $fabs:path,
      $exp:path, $ln:path, $ln1p:path, $erfc:path, $lgamma:path, $floor:path,
      $sin:path, $cos:path, $asin:path) => {
         impl Real for $t {
             const ZERO: Self = 0.0;
             const ONE: Self = 1.0;
             const EPSILON: Self = <$t>::EPSILON;
+            const NATIVE: bool = $native;
 
             #[inline]
             fn from_f64(x: f64) -> Self {
@@ -171,6 +176,7 @@ macro_rules! impl_real {
 
 impl_real!(
     f32,
+    !cfg!(all(target_arch = "arm", not(target_abi = "eabihf"))),
     libm::sqrtf,
     libm::atan2f,
     libm::hypotf,
@@ -189,6 +195,7 @@ impl_real!(
 );
 impl_real!(
     f64,
+    !cfg!(target_arch = "arm"),
     libm::sqrt,
     libm::atan2,
     libm::hypot,

@@ -69,7 +69,9 @@ impl<const N: usize, const L: usize> ExactMoments<N, L> {
         }
         let mut prod = self.prod;
         for ((i, j), p) in pairs::<N>().zip(prod.iter_mut()) {
-            *p = p.checked_add(product(x[i], x[j])).ok_or(SampleError::Overflow)?;
+            *p = p
+                .checked_add(product(x[i], x[j]))
+                .ok_or(SampleError::Overflow)?;
         }
         *self = ExactMoments { count, sum, prod };
         Ok(())

@@ -12,8 +12,20 @@ struct Core<T, const N: usize, const L: usize> {
     comoment: [T; L],
 }
 
+/// With hardware float: `x - x` is 0 for every finite `x` and NaN for an infinity or a NaN,
+/// so one compare of the sum checks the lot (cheaper than a test per value). In software
+/// float the per-value test, an integer test of the exponent bits, is the cheaper one.
+#[inline]
 fn all_finite<T: Real>(xs: &[T]) -> bool {
-    xs.iter().all(|v| v.is_finite())
+    if T::NATIVE {
+        let mut acc = T::ZERO;
+        for &v in xs {
+            acc += v - v;
+        }
+        acc == T::ZERO
+    } else {
+        xs.iter().all(|v| v.is_finite())
+    }
 }
 
 impl<T: Real, const N: usize, const L: usize> Core<T, N, L> {

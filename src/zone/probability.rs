@@ -2,19 +2,19 @@
 
 use super::{Bounds, CircleZone, EllipseZone, RectZone, Yield, ZoneError};
 use crate::math::root::solve_bracketed;
-use crate::math::{norm_cdf, norm_pdf, norm_sf, Precision, Real};
+use crate::math::{norm_cdf, norm_sf, Orthant, Precision, Real};
 use crate::Covariance;
 
 /// `P(lo < Z < hi)` for a standard normal, from whichever tails keep it accurate, together
 /// with the two outer tails `P(Z <= lo)` and `P(Z >= hi)`.
 #[inline]
-fn interval<T: Real>(lo: T, hi: T) -> (T, T, T) {
-    let below = norm_cdf(lo);
-    let above = norm_sf(hi);
+fn interval<T: Precision>(lo: T, hi: T) -> (T, T, T) {
+    let (below, over_lo) = T::normal_tails(lo);
+    let (under_hi, above) = T::normal_tails(hi);
     let inside = if lo > T::ZERO {
-        (norm_sf(lo) - above).max(T::ZERO)
+        (over_lo - above).max(T::ZERO)
     } else if hi < T::ZERO {
-        (norm_cdf(hi) - below).max(T::ZERO)
+        (under_hi - below).max(T::ZERO)
     } else {
         (T::ONE - below - above).max(T::ZERO)
     };
@@ -35,12 +35,22 @@ pub(super) fn rect<T: Precision>(z: &RectZone<T>, mu: &[T; 2], c: &Covariance<T,
     let (lo, hi) = (z.lo(), z.hi());
     let a = [(lo[0] - mu[0]) / s[0], (lo[1] - mu[1]) / s[1]];
     let bb = [(hi[0] - mu[0]) / s[0], (hi[1] - mu[1]) / s[1]];
-    let u = |h: T, k: T| T::bvn_upper(h, k, r);
-    let (u_a1b2, u_b1b2) = (u(a[0], bb[1]), u(bb[0], bb[1]));
-    let inside = u(a[0], a[1]) - u(bb[0], a[1]) - u_a1b2 + u_b1b2;
-    let below = (u(-bb[0], -a[1]) - u(-a[0], -a[1])).max(T::ZERO);
+    // Margin tails (P(Z <= .), P(Z > .)) at the four limits, shared by the six orthants.
+    let (ta, tb) = (
+        [T::normal_tails(a[0]), T::normal_tails(a[1])],
+        [T::normal_tails(bb[0]), T::normal_tails(bb[1])],
+    );
+    let o = Orthant::new(r);
+    let u_a1b2 = o.upper(a[0], bb[1], ta[0].1, tb[1].1);
+    let u_b1b2 = o.upper(bb[0], bb[1], tb[0].1, tb[1].1);
+    let inside =
+        o.upper(a[0], a[1], ta[0].1, ta[1].1) - o.upper(bb[0], a[1], tb[0].1, ta[1].1) - u_a1b2
+            + u_b1b2;
+    let below = (o.upper(-bb[0], -a[1], tb[0].0, ta[1].0)
+        - o.upper(-a[0], -a[1], ta[0].0, ta[1].0))
+    .max(T::ZERO);
     let above = (u_a1b2 - u_b1b2).max(T::ZERO);
-    let outside = norm_cdf(a[0]) + norm_sf(bb[0]) + below + above;
+    let outside = ta[0].0 + tb[0].1 + below + above;
     Yield {
         inside: clamp01(inside),
         outside: clamp01(outside),
@@ -77,7 +87,7 @@ fn frame<T: Real>(cov: &Covariance<T, 2>, d: [T; 2]) -> Frame<T> {
 /// tails beyond the disk and the integral of the inner tails, never `1 - inside`.
 fn disk<T: Precision>(f: &Frame<T>, r: T) -> Yield<T> {
     let (mo, so, mi, si) = (f.m_minor, f.s_minor, f.m_major, f.s_major);
-    let outer_tails = norm_cdf((-r - mo) / so) + norm_sf((r - mo) / so);
+    let outer_tails = T::normal_tails((-r - mo) / so).0 + T::normal_tails((r - mo) / so).1;
     let w = T::from_f64(T::WINDOW);
     let lo = (mo - w * so).max(-r);
     let hi = (mo + w * so).min(r);
@@ -92,13 +102,16 @@ fn disk<T: Precision>(f: &Frame<T>, r: T) -> Yield<T> {
     let panels = T::from_u32(T::PANELS);
     let half = (t_hi - t_lo) / (panels + panels);
     let (mut acc_in, mut acc_out) = (T::ZERO, T::ZERO);
+    // 1 / (sqrt(2 pi) so): the normal density's constant.
+    let density = T::from_f64(0.398_942_280_401_432_7) / so;
     for p in 0..T::PANELS {
         let centre = t_lo + half * (T::from_u32(2 * p) + T::ONE);
         for &(x, wt) in T::RULE.iter() {
             for sign in [-T::ONE, T::ONE] {
                 let t = centre + sign * half * T::from_f64(x);
-                let (u, v) = (r * t.sin(), r * t.cos());
-                let dens = norm_pdf((u - mo) / so) / so;
+                let (u, v) = (r * T::node_sin(t), r * T::node_cos(t));
+                let z = (u - mo) / so;
+                let dens = density * T::node_exp(-(z * z) * T::from_f64(0.5));
                 let (inside, below, above) = interval((-v - mi) / si, (v - mi) / si);
                 let k = T::from_f64(wt) * v * dens;
                 acc_in += k * inside;

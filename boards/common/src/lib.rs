@@ -129,7 +129,7 @@ fn libm_exp(x: f32) -> f32 {
 }
 
 /// Parses the demo capture's x, y columns.
-fn samples() -> impl Iterator<Item = [f32; 2]> {
+pub fn samples() -> impl Iterator<Item = [f32; 2]> {
     CAPTURE.lines().skip(1).filter_map(|l| {
         let mut f = l.split(',').skip(1);
         let x: f32 = f.next()?.parse().ok()?;
@@ -193,8 +193,38 @@ pub fn replay<W: Write>(out: &mut W) {
                 c.matrix()[1][1].to_bits()
             );
         }
+        // The f32 d^2 of every sample against the learned baseline, and a plain f32 Welford
+        // summary of the whole capture: the host test compares both with an f64 reference.
+        if let Some(m) = w.monitor() {
+            let _ = write!(out, "replay-f32 d2");
+            for x in samples() {
+                let _ = write!(
+                    out,
+                    " {:08x}",
+                    m.gate().baseline().mahalanobis2(&x).to_bits()
+                );
+            }
+            let _ = writeln!(out);
+        }
     } else {
         let _ = writeln!(out, "none");
+    }
+    let mut all = Moments2::<f32>::new();
+    for x in samples() {
+        let _ = all.push(x);
+    }
+    if let (Ok(m), Ok(c)) = (all.mean(), all.sample_covariance()) {
+        let c = c.matrix();
+        let _ = writeln!(
+            out,
+            "replay-f32 summary n {} mean {:08x} {:08x} cov {:08x} {:08x} {:08x}",
+            all.count(),
+            m[0].to_bits(),
+            m[1].to_bits(),
+            c[0][0].to_bits(),
+            c[0][1].to_bits(),
+            c[1][1].to_bits()
+        );
     }
 }
 
@@ -239,6 +269,25 @@ pub mod peer {
             let d = x - self.mean;
             self.mean += d / self.n;
             self.m2 += d * (x - self.mean).transpose();
+        }
+
+        /// Welford's update with the checks covgate makes: a non-finite sample or result is
+        /// refused and nothing changes.
+        #[inline(never)]
+        pub fn push_checked(&mut self, x: [f32; 2]) -> bool {
+            if !x.iter().all(|v| v.is_finite()) {
+                return false;
+            }
+            let x = Vector2::from(x);
+            let n = self.n + 1.0;
+            let d = x - self.mean;
+            let mean = self.mean + d / n;
+            let m2 = self.m2 + d * (x - mean).transpose();
+            if !(mean.iter().all(|v| v.is_finite()) && m2.iter().all(|v| v.is_finite())) {
+                return false;
+            }
+            (self.n, self.mean, self.m2) = (n, mean, m2);
+            true
         }
     }
 
@@ -301,6 +350,15 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
         black_box(&mut pu).push(black_box([i as f32 * 0.25, 1.0]));
     });
     let _ = writeln!(out, "count peer-nalgebra-update {}", per_call(t, reps));
+    let mut pc = peer::Update::default();
+    let t = measure(clk, reps, |i| {
+        black_box(black_box(&mut pc).push_checked(black_box([i as f32 * 0.25, 1.0])));
+    });
+    let _ = writeln!(
+        out,
+        "count peer-nalgebra-update-checked {}",
+        per_call(t, reps)
+    );
     let pg = peer::Gate {
         mean: nalgebra::Vector2::new(1.0, 1.0),
         inv: nalgebra::Matrix2::new(4.0f32, 2.0, 2.0, 5.0)
@@ -376,6 +434,21 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
             );
         });
         let _ = writeln!(out, "count rect-probability-f32 {}", per_call(t, small));
+        // The same rectangle at correlation 0.9, where the orthants take the 10-point
+        // high-correlation expansion instead of the prepared 5-point rule.
+        let high = Covariance::from_matrix([[1.69f32, 0.936], [0.936, 0.64]]);
+        let t = measure(clk, small, |i| {
+            black_box(
+                black_box(&z)
+                    .probability(&black_box([0.4 + i as f32 * 1e-4, -0.2]), &high)
+                    .ok(),
+            );
+        });
+        let _ = writeln!(
+            out,
+            "count rect-probability-f32-r0.9 {}",
+            per_call(t, small)
+        );
     }
     if let Ok(c) = CircleZone::new([0.0f32, 0.0], 3.2) {
         let z = Zone::Circle(c);
