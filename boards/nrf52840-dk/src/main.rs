@@ -1,0 +1,120 @@
+//! covgate on an nRF52840 development kit.
+//!
+//! The drilling-cell demo capture (hole offsets in micrometres) is streamed at 10 samples a
+//! second through a `Watch` (learn 100 parts, Phase II gate at alpha 0.0027, 60 um positional
+//! tolerance circle, MEWMA drift chart). Every verdict drives two GPIO lines through
+//! `covgate::signal::GoNoGo` and is logged over RTT with defmt.
+//!
+//! Pins (see README.md for wiring and cautions):
+//! - go line: P1.01, active high; mirrored on LED 1 (P0.13)
+//! - no-go line: P1.02, active high; mirrored on LED 2 (P0.14)
+//! - button 1 (P0.11): re-learn the baseline from the next 100 samples
+//! - button 2 (P0.12): acknowledge a latched drift alarm
+//!
+//! To gate a real sensor, replace `next_sample` with its reading in the same units as the
+//! zone.
+
+#![no_std]
+#![no_main]
+
+use cortex_m_rt::entry;
+use covgate::signal::{GoNoGo, Polarity};
+use covgate::{CircleZone, Verdict, Watch, WatchConfig, Zone};
+use defmt_rtt as _;
+use embedded_hal::digital::{InputPin, OutputPin};
+use nrf52840_hal::gpio::{p0, p1, Level};
+use nrf52840_hal::pac;
+use panic_probe as _;
+
+/// Core clock after reset (HFINT), for the sample period.
+const CORE_HZ: u32 = 64_000_000;
+/// Samples per second.
+const RATE_HZ: u32 = 10;
+
+/// The LEDs of the kit are active low: on for an active line.
+fn mirror<P: OutputPin>(led: &mut P, active: bool) {
+    let _ = if active {
+        led.set_low()
+    } else {
+        led.set_high()
+    };
+}
+
+#[entry]
+fn main() -> ! {
+    let Some(p) = pac::Peripherals::take() else {
+        defmt::error!("peripherals already taken");
+        loop {
+            cortex_m::asm::wfi();
+        }
+    };
+    let port0 = p0::Parts::new(p.P0);
+    let port1 = p1::Parts::new(p.P1);
+    let go = port1.p1_01.into_push_pull_output(Level::Low).degrade();
+    let nogo = port1.p1_02.into_push_pull_output(Level::High).degrade();
+    let mut led_go = port0.p0_13.into_push_pull_output(Level::High).degrade();
+    let mut led_nogo = port0.p0_14.into_push_pull_output(Level::Low).degrade();
+    let mut relearn = port0.p0_11.into_pullup_input().degrade();
+    let mut acknowledge = port0.p0_12.into_pullup_input().degrade();
+
+    let Ok(mut lines) = GoNoGo::new(go, nogo, Polarity::ActiveHigh) else {
+        defmt::error!("cannot drive the output lines; halted with no-go");
+        loop {
+            cortex_m::asm::wfi();
+        }
+    };
+    let mut cfg = WatchConfig::<f32, 2>::new(100, 0.0027);
+    cfg.zone = CircleZone::new([0.0, 0.0], 60.0).ok().map(Zone::Circle);
+    cfg.mewma = Some((0.1, 12.34, false));
+    let Ok(mut watch) = Watch::<f32, 2, 128>::new(cfg) else {
+        defmt::error!("watch configuration refused; halted with no-go");
+        loop {
+            cortex_m::asm::wfi();
+        }
+    };
+    defmt::info!("covgate nrf52840-dk: learning 100 samples");
+
+    let mut samples = covgate_firmware::samples();
+    let mut index: u32 = 0;
+    loop {
+        let x = match next_sample(&mut samples) {
+            Some(x) => x,
+            None => {
+                samples = covgate_firmware::samples();
+                continue;
+            }
+        };
+        if relearn.is_low().unwrap_or(false) {
+            watch.relearn();
+            defmt::info!("re-learn requested: learning the next 100 samples");
+        }
+        if acknowledge.is_low().unwrap_or(false) {
+            watch.acknowledge();
+            defmt::info!("alarm acknowledged");
+        }
+        let step = watch.push(x);
+        if let Err(e) = lines.apply(&step.verdict) {
+            defmt::error!(
+                "output fault, lines held in the safe state: {}",
+                defmt::Debug2Format(&e)
+            );
+        }
+        let state = lines.lines();
+        mirror(&mut led_go, state.is_some_and(|l| l.go));
+        mirror(&mut led_nogo, state.is_none_or(|l| l.nogo));
+        match &step.verdict {
+            Verdict::Go(d) => defmt::debug!("#{} go d2 {}", index, d.d2),
+            v => defmt::info!("#{} {}", index, v),
+        }
+        if let Some(a) = &step.alarm {
+            defmt::warn!("#{} drift alarm {}", index, a);
+        }
+        index = index.wrapping_add(1);
+        cortex_m::asm::delay(CORE_HZ / RATE_HZ);
+    }
+}
+
+/// The next measurement: here the demo capture; on a real station the sensor reading.
+fn next_sample(source: &mut impl Iterator<Item = [f32; 2]>) -> Option<[f32; 2]> {
+    source.next()
+}
