@@ -383,6 +383,49 @@ fn kernels_against_f64() {
 }
 
 #[test]
+fn huge_finite_limits_equal_infinite_ones() {
+    // A rectangle limit far beyond the data (a sentinel such as -1e20) must give the same
+    // probabilities as an absent (infinite) one, in both precisions.
+    let check = |lo: [f64; 2], hi: [f64; 2]| {
+        let open = |v: f64| {
+            if v.abs() >= 1e19 {
+                v.signum() * f64::INFINITY
+            } else {
+                v
+            }
+        };
+        let mean = [0.2, -0.1];
+        let cov = [[1.3, 0.4], [0.4, 0.9]];
+        let y64 = |a: [f64; 2], b: [f64; 2]| {
+            Zone::Rect(RectZone::new(a, b).unwrap())
+                .probability(&mean, &Covariance::from_matrix(cov))
+                .unwrap()
+        };
+        let y32 = |a: [f64; 2], b: [f64; 2]| {
+            let f = |v: [f64; 2]| v.map(|x| x as f32);
+            Zone::Rect(RectZone::new(f(a), f(b)).unwrap())
+                .probability(
+                    &f(mean),
+                    &Covariance::from_matrix(cov.map(|r| r.map(|x| x as f32))),
+                )
+                .unwrap()
+        };
+        let (lo_o, hi_o) = (lo.map(open), hi.map(open));
+        let (a, b) = (y64(lo, hi), y64(lo_o, hi_o));
+        assert!((a.inside - b.inside).abs() < 1e-15 && (a.outside - b.outside).abs() < 1e-15);
+        let (a, b) = (y32(lo, hi), y32(lo_o, hi_o));
+        assert!(
+            (a.inside - b.inside).abs() < 1e-6 && (a.outside - b.outside).abs() < 1e-6,
+            "{lo:?} {hi:?}: {a:?} vs {b:?}"
+        );
+    };
+    check([-1e20, -1.0], [1.0, 1.0]);
+    check([-1.0, -3e19], [1.0, 1.0]);
+    check([-1.0, -1.0], [1e20, 2.0]);
+    check([-1e30, -1e30], [1e30, 0.5]);
+}
+
+#[test]
 fn int_circle_exact_across_the_16_bit_switch() {
     // Offsets up to 2^15 are tested in 32 bits, wider ones in 64: both must equal the exact
     // test 4 (dx^2 + dy^2) <= D^2 (here in i128), around the boundary and around the switch.

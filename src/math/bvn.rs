@@ -36,12 +36,20 @@ pub fn bvn_upper_f64(h: f64, k: f64, r: f64) -> f64 {
 /// see [`Orthant`]), and the same high-`|r|` expansion as [`bvn_upper_f64`] with 10 points
 /// above. Absolute error below 2e-6 (tested against mpmath).
 pub fn bvn_upper_f32(h: f32, k: f32, r: f32) -> f32 {
-    if r.abs() < 0.8 {
+    if r.abs() < LOW5_SPLIT as f32 {
         Orthant::new(r).upper(h, k, upper_tail(h), upper_tail(k))
     } else {
-        bvn_upper(h, k, r, &GL10, 0.8)
+        bvn_upper(h, k, r, &GL10, LOW5_SPLIT)
     }
 }
+
+/// Below this `|r|` the `f32` orthants use the 5-point rule ([`Orthant`]), above it the
+/// 10-point high-correlation expansion. One constant for both places, so that
+/// `Orthant::upper` and [`bvn_upper_f32`] can never send a correlation to each other in turn.
+const LOW5_SPLIT: f64 = 0.8;
+
+/// Nodes of the 5-point rule: the centre and two symmetric pairs.
+const LOW5_NODES: usize = 2 * GL5.len() + 1;
 
 /// `P(Z > x)` through the precision's tail kernel.
 fn upper_tail<T: Precision>(x: T) -> T {
@@ -51,24 +59,24 @@ fn upper_tail<T: Precision>(x: T) -> T {
 /// Orthant probabilities for one correlation, prepared once for the several orthants of a
 /// rectangle. With the 5-point low-correlation rule (`f32`, `|r| < 0.8`) the nodes
 /// `sin(asin(r) (1 +- x_i) / 2)` and `1 / (1 - sin^2)` depend on `r` alone, so each orthant
-/// costs nine exponentials; otherwise it calls [`Precision::bvn_upper`].
+/// costs five exponentials; otherwise it calls [`Precision::bvn_upper`].
 #[derive(Clone, Copy, Debug)]
 pub(crate) struct Orthant<T> {
     r: T,
     low: bool,
     asr: T,
     /// `(sin, 1 / (1 - sin^2), weight)` per node.
-    nodes: [(T, T, T); 9],
+    nodes: [(T, T, T); LOW5_NODES],
 }
 
 impl<T: Precision> Orthant<T> {
     pub(crate) fn new(r: T) -> Self {
-        let low = T::LOW5 && r.abs() < T::from_f64(0.8);
+        let low = T::LOW5 && r.abs() < T::from_f64(LOW5_SPLIT);
         let mut o = Orthant {
             r,
             low,
             asr: T::ZERO,
-            nodes: [(T::ZERO, T::ZERO, T::ZERO); 9],
+            nodes: [(T::ZERO, T::ZERO, T::ZERO); LOW5_NODES],
         };
         if low {
             o.asr = r.asin() * T::from_f64(0.5);
@@ -97,6 +105,7 @@ impl<T: Precision> Orthant<T> {
         if let Some(p) = infinite_limits(h, k, qh, qk) {
             return p;
         }
+        let (h, k) = (clamp_limit(h), clamp_limit(k));
         let hk = h * k;
         let hs = (h * h + k * k) * T::from_f64(0.5);
         let mut s = T::ZERO;
@@ -105,6 +114,13 @@ impl<T: Precision> Orthant<T> {
         }
         clamp01(s * self.asr / T::from_f64(TWO_PI) + qh * qk)
     }
+}
+
+/// A finite limit beyond +-40 standard deviations behaves as an infinite one (the normal tail
+/// there is below 1e-349, zero in both precisions); clamping keeps `h^2`, `h k` finite.
+fn clamp_limit<T: Real>(h: T) -> T {
+    let far = T::from_f64(40.0);
+    h.max(-far).min(far)
 }
 
 fn clamp01<T: Real>(p: T) -> T {
@@ -135,6 +151,7 @@ fn bvn_upper<T: Precision>(h: T, k: T, r: T, rule: Rule, split: f64) -> T {
     if let Some(p) = infinite_limits(h, k, qh, qk) {
         return p;
     }
+    let (h, k) = (clamp_limit(h), clamp_limit(k));
     let half = T::from_f64(0.5);
     let one = T::ONE;
     let two_pi = T::from_f64(TWO_PI);

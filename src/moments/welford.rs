@@ -16,6 +16,7 @@ struct Core<T, const N: usize, const L: usize> {
 /// so one compare of the sum checks the lot (cheaper than a test per value). In software
 /// float the per-value test, an integer test of the exponent bits, is the cheaper one.
 #[inline]
+#[allow(clippy::eq_op)] // `v - v` is the test, not a slip
 fn all_finite<T: Real>(xs: &[T]) -> bool {
     if T::NATIVE {
         let mut acc = T::ZERO;

@@ -397,6 +397,12 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
                     black_box(black_box(&ig).passes(&black_box([100 + (i as i32 & 15), 50])));
                 });
                 let _ = writeln!(out, "count gate-int {}", per_call(t, reps));
+                // The exact 64-bit test alone: what a sample within the filter's margins (or
+                // a gate too wide for the filter) costs.
+                let t = measure(clk, reps, |i| {
+                    black_box(black_box(&ig).passes_exact(&black_box([100 + (i as i32 & 15), 50])));
+                });
+                let _ = writeln!(out, "count gate-int-exact {}", per_call(t, reps));
                 let zone = CircleZone::new([100.0f64, 50.0], 60.0)
                     .ok()
                     .and_then(|c| IntZone::from_zone(&Zone::Circle(c)).ok());

@@ -11,6 +11,11 @@
 //! - button 1 (P0.11): re-learn the baseline from the next 100 samples
 //! - button 2 (P0.12): acknowledge a latched drift alarm
 //!
+//! Buttons act on the press (the high-to-low edge seen between two samples), once per press.
+//! A watchdog (0.5 s, also running while a debugger halts the core) resets the chip if the loop
+//! stops, for example after a panic: the pins then return to inputs, so the go line must be
+//! pulled down at the receiver (see README.md).
+//!
 //! To gate a real sensor, replace `next_sample` with its reading in the same units as the
 //! zone.
 
@@ -24,12 +29,38 @@ use defmt_rtt as _;
 use embedded_hal::digital::{InputPin, OutputPin};
 use nrf52840_hal::gpio::{p0, p1, Level};
 use nrf52840_hal::pac;
+use nrf52840_hal::wdt::{count, Watchdog};
 use panic_probe as _;
 
 /// Core clock after reset (HFINT), for the sample period.
 const CORE_HZ: u32 = 64_000_000;
 /// Samples per second.
 const RATE_HZ: u32 = 10;
+
+/// Watchdog period in ticks of the 32.768 kHz low-frequency clock: 0.5 s, five sample periods.
+const WATCHDOG_TICKS: u32 = 16_384;
+
+/// A button on a pulled-up input: `true` once per press (a high-to-low change between polls).
+struct Button<P> {
+    pin: P,
+    was_down: bool,
+}
+
+impl<P: InputPin> Button<P> {
+    fn new(pin: P) -> Self {
+        Button {
+            pin,
+            was_down: true, // a button held through reset does not count as a press
+        }
+    }
+
+    fn pressed(&mut self) -> bool {
+        let down = self.pin.is_low().unwrap_or(false);
+        let press = down && !self.was_down;
+        self.was_down = down;
+        press
+    }
+}
 
 /// The LEDs of the kit are active low: on for an active line.
 fn mirror<P: OutputPin>(led: &mut P, active: bool) {
@@ -54,8 +85,19 @@ fn main() -> ! {
     let nogo = port1.p1_02.into_push_pull_output(Level::High).degrade();
     let mut led_go = port0.p0_13.into_push_pull_output(Level::High).degrade();
     let mut led_nogo = port0.p0_14.into_push_pull_output(Level::Low).degrade();
-    let mut relearn = port0.p0_11.into_pullup_input().degrade();
-    let mut acknowledge = port0.p0_12.into_pullup_input().degrade();
+    let mut relearn = Button::new(port0.p0_11.into_pullup_input().degrade());
+    let mut acknowledge = Button::new(port0.p0_12.into_pullup_input().degrade());
+    // After a watchdog reset the watchdog is still running: take it over as it is.
+    let mut dog = match Watchdog::try_new(p.WDT) {
+        Ok(mut w) => {
+            w.set_lfosc_ticks(WATCHDOG_TICKS);
+            w.run_during_debug_halt(true);
+            Some(w.activate::<count::One>().handles.0)
+        }
+        Err(wdt) => Watchdog::try_recover::<count::One>(wdt)
+            .ok()
+            .map(|parts| parts.handles.0),
+    };
 
     let Ok(mut lines) = GoNoGo::new(go, nogo, Polarity::ActiveHigh) else {
         defmt::error!("cannot drive the output lines; halted with no-go");
@@ -84,11 +126,14 @@ fn main() -> ! {
                 continue;
             }
         };
-        if relearn.is_low().unwrap_or(false) {
+        if let Some(d) = dog.as_mut() {
+            d.pet();
+        }
+        if relearn.pressed() {
             watch.relearn();
             defmt::info!("re-learn requested: learning the next 100 samples");
         }
-        if acknowledge.is_low().unwrap_or(false) {
+        if acknowledge.pressed() && watch.monitor().is_some_and(|m| m.alarm().is_some()) {
             watch.acknowledge();
             defmt::info!("alarm acknowledged");
         }
