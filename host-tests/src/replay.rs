@@ -59,6 +59,24 @@ pub struct Settings {
     pub chart: Option<ChartSpec>,
     /// Acknowledge every alarm at once (to see every alarm, not only the first).
     pub acknowledge: bool,
+    /// Confidence level of the yield bounds (with a zone).
+    pub confidence: f64,
+}
+
+/// Draws behind the replay's yield bounds.
+pub const BOUND_DRAWS: u32 = 4000;
+/// Seed of those draws (fixed: the same capture gives the same summary).
+pub const BOUND_SEED: u64 = 1;
+
+/// Confidence bounds on the predicted yield from the learned baseline.
+#[derive(Clone, Copy, Debug)]
+pub struct BoundSummary {
+    /// Samples the baseline was estimated from (learned minus screened out).
+    pub size: u32,
+    /// Lower bound on the in-zone probability.
+    pub inside_lower: f64,
+    /// Upper bound on the nonconforming fraction, ppm.
+    pub ppm_outside_upper: f64,
 }
 
 /// One sample's outcome.
@@ -105,6 +123,8 @@ pub struct Outcome {
     pub first_alarm: Option<usize>,
     /// Chart limit.
     pub chart_limit: Option<f64>,
+    /// Confidence bounds on the predicted yield (with a zone, 2-D).
+    pub bound: Option<BoundSummary>,
     /// Lower Cholesky factor (for gate ellipses).
     pub factor: Vec<Vec<f64>>,
 }
@@ -211,7 +231,7 @@ pub fn run_with_progress<const N: usize>(
         .iter()
         .filter(|x| !(b.mahalanobis2(x) <= limit))
         .count();
-    let (mut inside_predicted, mut ppm, mut out_of_zone) = (None, None, None);
+    let (mut inside_predicted, mut ppm, mut out_of_zone, mut bound) = (None, None, None, None);
     if let (Some(z), true) = (&s.zone, N == 2) {
         let z64 = z.build::<f64>()?;
         let m2 = [mean[0], mean[1]];
@@ -220,6 +240,24 @@ pub fn run_with_progress<const N: usize>(
         let y = z64.probability(&m2, &c2).map_err(|e| e.to_string())?;
         inside_predicted = Some(y.inside);
         ppm = Some(y.capability().ppm);
+        let size = s.learn.saturating_sub(w.screened_out());
+        let mut draws = vec![0.0f64; BOUND_DRAWS as usize];
+        bound = z64
+            .yield_bound(
+                &m2,
+                &c2,
+                size,
+                s.confidence,
+                covgate::Uncertainty::MeanAndCovariance,
+                &mut covgate::math::Xoshiro128::new(BOUND_SEED),
+                &mut draws,
+            )
+            .ok()
+            .map(|b| BoundSummary {
+                size,
+                inside_lower: b.inside_lower,
+                ppm_outside_upper: b.outside_upper * 1e6,
+            });
         let z32 = z.build::<f32>()?;
         out_of_zone = Some(
             monitored
@@ -248,6 +286,7 @@ pub fn run_with_progress<const N: usize>(
         out_of_family,
         first_alarm,
         chart_limit,
+        bound,
         factor,
     })
 }

@@ -79,6 +79,20 @@ fn a_step_shift_is_alarmed_and_counts_match_a_direct_count() {
     assert_eq!(s["out_of_zone"].as_u64().unwrap() as usize, direct);
     assert_eq!(s["samples"], 260);
     assert!(s["inside_predicted"].as_f64().unwrap() > 0.0);
+    // The 95 % confidence bounds from the 100-sample baseline bracket the point estimate.
+    let (inside, lower) = (
+        s["inside_predicted"].as_f64().unwrap(),
+        s["inside_lower"].as_f64().unwrap(),
+    );
+    assert!(lower < inside, "{lower} vs {inside}");
+    assert!(
+        s["ppm_outside_upper"].as_f64().unwrap() > s["ppm_outside_predicted"].as_f64().unwrap()
+    );
+    assert_eq!(s["bound"]["confidence"], 0.95);
+    assert_eq!(
+        s["bound"]["baseline_size"].as_u64().unwrap(),
+        100 - s["baseline"]["screened_out"].as_u64().unwrap()
+    );
     // verdicts.csv: one row per sample plus the header, the note column carried through.
     let v = std::fs::read_to_string(out.join("verdicts.csv")).unwrap();
     assert_eq!(v.lines().count(), 261);
@@ -146,6 +160,8 @@ fn errors_name_file_line_and_column_and_write_nothing() {
     for args in [
         vec!["--learn", "200"], // more than the capture holds
         vec!["--alpha", "1.5"],
+        vec!["--confidence", "1"],
+        vec!["--confidence", "-0.1"],
         vec!["--circle", "0,0,-1"],
         vec!["--chart", "ewma:0.1"],
         vec!["--chart", "mewma:x"],

@@ -67,6 +67,79 @@ fn zone_prints_yield_ppm_and_bounds() {
 }
 
 #[test]
+fn zone_confidence_bounds_from_a_baseline_size() {
+    let base = [
+        "zone",
+        "--mean",
+        "4,-3",
+        "--cov",
+        "64,19.2,36",
+        "--circle",
+        "0,0,60",
+    ];
+    let with = |extra: &[&str]| {
+        let mut a = base.to_vec();
+        a.extend_from_slice(extra);
+        json(&a)
+    };
+    let plain = json(&base);
+    assert!(
+        plain.get("inside_lower").is_none(),
+        "no bound without --baseline-size"
+    );
+    let v = with(&[
+        "--baseline-size",
+        "30",
+        "--confidence",
+        "0.95",
+        "--draws",
+        "2000",
+    ]);
+    let (inside, lower) = (
+        v["inside"].as_f64().unwrap(),
+        v["inside_lower"].as_f64().unwrap(),
+    );
+    let (ppm, upper) = (
+        v["ppm_outside"].as_f64().unwrap(),
+        v["ppm_outside_upper"].as_f64().unwrap(),
+    );
+    assert!(lower < inside && upper > ppm, "{v}");
+    assert!(((1.0 - lower) * 1e6 - upper).abs() < 1e-6 * upper);
+    // Same seed, same answer; more samples, a tighter bound; a higher level, a lower bound.
+    assert_eq!(
+        v,
+        with(&[
+            "--baseline-size",
+            "30",
+            "--confidence",
+            "0.95",
+            "--draws",
+            "2000"
+        ])
+    );
+    let big = with(&["--baseline-size", "300", "--draws", "2000"]);
+    assert!(big["inside_lower"].as_f64().unwrap() > lower);
+    let strict = with(&[
+        "--baseline-size",
+        "30",
+        "--confidence",
+        "0.99",
+        "--draws",
+        "2000",
+    ]);
+    assert!(strict["inside_lower"].as_f64().unwrap() < lower);
+    let known = with(&[
+        "--baseline-size",
+        "30",
+        "--known-covariance",
+        "--draws",
+        "2000",
+    ]);
+    assert!(known["inside_lower"].as_f64().unwrap() > lower);
+    assert_eq!(known["covariance"], "known");
+}
+
+#[test]
 fn zone_errors_are_one_line_exit_two() {
     for args in [
         &[
@@ -110,6 +183,67 @@ fn zone_errors_are_one_line_exit_two() {
         ],
         &[
             "zone", "--mean", "nan,0", "--cov", "1,0,1", "--circle", "0,0,1",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--circle",
+            "0,0,1",
+            "--baseline-size",
+            "2",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--circle",
+            "0,0,1",
+            "--baseline-size",
+            "20",
+            "--confidence",
+            "1",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--circle",
+            "0,0,1",
+            "--baseline-size",
+            "20",
+            "--confidence",
+            "-0.5",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--circle",
+            "0,0,1",
+            "--confidence",
+            "0.9",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--circle",
+            "0,0,1",
+            "--baseline-size",
+            "20",
+            "--draws",
+            "0",
         ],
     ] {
         let (code, stdout, stderr) = run(args);

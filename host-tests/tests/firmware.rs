@@ -152,7 +152,7 @@ fn firmware_runs_on_three_cores_and_matches_the_host() {
             lines.contains(&stats.as_str()),
             "{board}: f32 statistics differ\nhost: {stats}\n{stdout}"
         );
-        for p in ["replay-f32 d2", "replay-f32 summary "] {
+        for p in ["replay-f32 d2", "replay-f32 summary ", "replay-f32 bound "] {
             let host = host_lines.iter().find(|l| l.starts_with(p));
             assert!(
                 host.is_some_and(|h| lines.contains(&h.as_str())),

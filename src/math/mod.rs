@@ -13,6 +13,7 @@ mod linalg;
 mod normal;
 mod precision;
 mod real;
+mod rng;
 pub(crate) mod root;
 
 pub use beta::{phase1_limit, phase2_limit, phase2_tail, subgroup_limit, Beta, FDist};
@@ -25,3 +26,4 @@ pub use linalg::{cholesky, det_symmetric_psd, symmetric_eigenvalues};
 pub use normal::{norm_cdf, norm_pdf, norm_quantile_upper, norm_sf};
 pub use precision::Precision;
 pub use real::Real;
+pub use rng::Xoshiro128;

@@ -19,9 +19,11 @@
 //! A limit value lying exactly on the boundary conforms (common practice: a dimension at its
 //! limit is in tolerance).
 
+mod confidence;
 mod integer;
 mod probability;
 
+pub use confidence::{BoundError, Uncertainty, YieldBound};
 pub use integer::{IntCircle, IntEllipse, IntRect, IntZone};
 pub use probability::coverage_radius;
 

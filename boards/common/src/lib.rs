@@ -205,6 +205,36 @@ pub fn replay<W: Write>(out: &mut W) {
                 );
             }
             let _ = writeln!(out);
+            // The 95 % bound on the yield of the 60 um circle from the learned baseline, 64
+            // draws, seed 1: the same bits on every core and on the host.
+            let b = m.gate().baseline();
+            let mut draws = [0.0f32; 64];
+            let size = 100 - w.screened_out();
+            let bound = CircleZone::new([0.0, 0.0], 60.0)
+                .map(Zone::Circle)
+                .ok()
+                .and_then(|z| {
+                    z.yield_bound(
+                        b.mean(),
+                        &b.covariance(),
+                        size,
+                        0.95,
+                        covgate::Uncertainty::MeanAndCovariance,
+                        &mut covgate::math::Xoshiro128::new(1),
+                        &mut draws,
+                    )
+                    .ok()
+                });
+            if let Some(y) = bound {
+                let _ = writeln!(
+                    out,
+                    "replay-f32 bound m {size} inside {:08x} lower {:08x} outside-upper {:08x} ({} ppm at most)",
+                    y.estimate.inside.to_bits(),
+                    y.inside_lower.to_bits(),
+                    y.outside_upper.to_bits(),
+                    (y.outside_upper * 1e6) as u32
+                );
+            }
         }
     } else {
         let _ = writeln!(out, "none");
@@ -466,6 +496,30 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
             );
         });
         let _ = writeln!(out, "count circle-probability-f32 {}", per_call(t, small));
+        // The 95 % yield bound from a baseline of 30, 100 draws (one circle probability each,
+        // plus the draws and the sort): one call.
+        let mut draws = [0.0f32; 100];
+        let mut rng = covgate::math::Xoshiro128::new(1);
+        let t = measure(clk, 1, |_| {
+            black_box(
+                black_box(&z)
+                    .yield_bound(
+                        &black_box([0.4, -0.2]),
+                        &cov,
+                        30,
+                        0.95,
+                        covgate::Uncertainty::MeanAndCovariance,
+                        &mut rng,
+                        &mut draws,
+                    )
+                    .ok(),
+            );
+        });
+        let _ = writeln!(
+            out,
+            "count yield-bound-circle-f32-100-draws {}",
+            per_call(t, 1)
+        );
     }
     let mut cfg = WatchConfig::<f32, 2>::new(10, 0.0027);
     cfg.zone = CircleZone::new([0.0, 0.0], 60.0).ok().map(Zone::Circle);
@@ -561,6 +615,18 @@ pub fn exercise_everything(seed: u32) -> u32 {
             acc += (y.capability().ppm > 1.0) as u32;
         }
         let _ = black_box(z.bounds(&[s, 0.1], &c));
+        let mut draws = [0.0f32; 8];
+        let mut rng = covgate::math::Xoshiro128::new(u64::from(seed));
+        for u in [
+            covgate::Uncertainty::MeanAndCovariance,
+            covgate::Uncertainty::MeanOnly,
+        ] {
+            if let Ok(b) =
+                z.yield_bound(&[s, 0.1], &c, black_box(20), 0.95, u, &mut rng, &mut draws)
+            {
+                acc += (b.inside_lower > 0.5) as u32;
+            }
+        }
     }
     if let Some(z) = CircleZone::new([0.0f64, 0.0], 60.0).ok().map(Zone::Circle) {
         if let Ok(iz) = IntZone::from_zone(&z) {

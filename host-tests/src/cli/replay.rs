@@ -43,6 +43,10 @@ pub struct Args {
     /// Acknowledge every alarm at once, to see every alarm (the device latches the first).
     #[arg(long)]
     pub acknowledge: bool,
+    /// Confidence level of the yield bounds in summary.json (`inside_lower`,
+    /// `ppm_outside_upper`, with a zone); default 0.95.
+    #[arg(long, value_name = "C", allow_hyphen_values = true)]
+    pub confidence: Option<f64>,
     /// Settings from a TOML file (keys as the long flags); flags given here win.
     #[arg(long, value_name = "FILE.toml")]
     pub config: Option<PathBuf>,
@@ -60,6 +64,7 @@ struct FileConfig {
     ellipse: Option<String>,
     chart: Option<String>,
     acknowledge: Option<bool>,
+    confidence: Option<f64>,
 }
 
 /// The capture's measurement columns and the columns carried through.
@@ -271,6 +276,12 @@ pub fn resolve(a: &Args) -> Result<Resolved, String> {
     if !(alpha > 0.0 && alpha < 1.0) {
         return Err(format!("--alpha {alpha} must lie strictly between 0 and 1"));
     }
+    let confidence = a.confidence.or(file.confidence).unwrap_or(0.95);
+    if !(confidence > 0.0 && confidence < 1.0) {
+        return Err(format!(
+            "--confidence {confidence} must lie strictly between 0 and 1"
+        ));
+    }
     let flag_zone = a.rect.is_some() || a.circle.is_some() || a.ellipse.is_some();
     let zone = if flag_zone {
         zone_of(&a.rect, &a.circle, &a.ellipse)?
@@ -286,6 +297,7 @@ pub fn resolve(a: &Args) -> Result<Resolved, String> {
             zone,
             chart: None,
             acknowledge: a.acknowledge || file.acknowledge.unwrap_or(false),
+            confidence,
         },
         chart: a.chart.clone().or(file.chart),
     })
@@ -336,6 +348,15 @@ fn summary_json(capture: &Path, r: &Resolved, o: &Outcome) -> serde_json::Value 
         }),
         "inside_predicted": o.inside_predicted,
         "ppm_outside_predicted": o.ppm_outside_predicted,
+        "inside_lower": o.bound.map(|b| b.inside_lower),
+        "ppm_outside_upper": o.bound.map(|b| b.ppm_outside_upper),
+        "bound": o.bound.map(|b| json!({
+            "confidence": r.settings.confidence,
+            "baseline_size": b.size,
+            "draws": crate::replay::BOUND_DRAWS,
+            "seed": crate::replay::BOUND_SEED,
+            "method": super::zone::BOUND_METHOD,
+        })),
         "out_of_zone": o.out_of_zone,
         "out_of_family": o.out_of_family,
         "alarms": o.rows.iter().filter(|r| r.alarm).count(),

@@ -1,7 +1,7 @@
 //! `covgate zone`: what-if yield of a tolerance zone for a given mean and covariance.
 
-use covgate::math::Precision;
-use covgate::{CircleZone, Covariance, EllipseZone, RectZone, Zone};
+use covgate::math::{Precision, Xoshiro128};
+use covgate::{BoundError, CircleZone, Covariance, EllipseZone, RectZone, Uncertainty, Zone};
 use serde_json::json;
 
 /// Arguments of `covgate zone`.
@@ -26,6 +26,72 @@ pub struct Args {
     /// Arithmetic of the computation: f64 (default) or f32 (what a device with an FPU runs).
     #[arg(long, value_name = "f32|f64", default_value = "f64")]
     pub precision: String,
+    /// Number of samples the mean and covariance were estimated from: adds the confidence
+    /// bounds `inside_lower` and `ppm_outside_upper`.
+    #[arg(long, value_name = "M")]
+    pub baseline_size: Option<u32>,
+    /// Confidence level of the bounds, strictly between 0 and 1 (default 0.95; needs
+    /// --baseline-size).
+    #[arg(long, value_name = "C", allow_hyphen_values = true)]
+    pub confidence: Option<f64>,
+    /// Number of draws for the bounds.
+    #[arg(long, value_name = "K", default_value_t = 4000)]
+    pub draws: u32,
+    /// Seed of the draws (the same seed gives the same bounds).
+    #[arg(long, value_name = "S", default_value_t = 1)]
+    pub seed: u64,
+    /// The covariance is known (not estimated): only the mean's uncertainty enters the bounds.
+    #[arg(long)]
+    pub known_covariance: bool,
+}
+
+/// Method line of the confidence bounds, shared with `covgate replay`.
+pub const BOUND_METHOD: &str = "generalized pivotal quantities: covariance from its Wishart pivot (Bartlett draws), mean given it, zone probability per draw, quantile over the draws; assumes independent normal baseline samples";
+
+/// The bounds for a baseline of `m` samples, as JSON fields; `Err` names the option at fault.
+#[allow(clippy::too_many_arguments)]
+pub fn bound_fields<T: Precision>(
+    zone: &Zone<T>,
+    mean: &[T; 2],
+    cov: &Covariance<T, 2>,
+    m: u32,
+    confidence: f64,
+    draws: u32,
+    seed: u64,
+    uncertainty: Uncertainty,
+) -> Result<serde_json::Value, String> {
+    if draws == 0 {
+        return Err("--draws: need at least one draw".into());
+    }
+    let mut buf = vec![T::ZERO; draws as usize];
+    let b = zone
+        .yield_bound(
+            mean,
+            cov,
+            m,
+            T::from_f64(confidence),
+            uncertainty,
+            &mut Xoshiro128::new(seed),
+            &mut buf,
+        )
+        .map_err(|e| match e {
+            BoundError::TooFewSamples => format!("--baseline-size: {e}"),
+            BoundError::BadConfidence => format!("--confidence: {e}"),
+            _ => e.to_string(),
+        })?;
+    Ok(json!({
+        "inside_lower": b.inside_lower.to_f64(),
+        "ppm_outside_upper": b.outside_upper.to_f64() * 1e6,
+        "confidence": confidence,
+        "baseline_size": m,
+        "draws": draws,
+        "seed": seed,
+        "covariance": match uncertainty {
+            Uncertainty::MeanOnly => "known",
+            Uncertainty::MeanAndCovariance => "estimated",
+        },
+        "bound_method": BOUND_METHOD,
+    }))
 }
 
 /// Parses `n` comma-separated numbers (`inf`, `-inf` allowed) for option `name`.
@@ -92,10 +158,33 @@ fn evaluate<T: Precision>(
             .to_string()
     })?;
     let b = zone.bounds(&m, &c).map_err(|e| e.to_string())?;
+    let conf = match (a.baseline_size, a.confidence) {
+        (None, Some(_)) => return Err("--confidence: needs --baseline-size".into()),
+        (Some(size), level) => Some((size, level.unwrap_or(0.95))),
+        (None, None) => None,
+    };
+    let uncertainty = if a.known_covariance {
+        Uncertainty::MeanOnly
+    } else {
+        Uncertainty::MeanAndCovariance
+    };
+    let bound = match conf {
+        Some((size, level)) => Some(bound_fields(
+            &zone,
+            &m,
+            &c,
+            size,
+            level,
+            a.draws,
+            a.seed,
+            uncertainty,
+        )?),
+        None => None,
+    };
     let cap = y.capability();
     let f = |v: T| v.to_f64();
     let index = f(cap.index);
-    Ok(json!({
+    let mut out = json!({
         "zone": kind,
         "precision": a.precision,
         "inside": f(y.inside),
@@ -112,7 +201,11 @@ fn evaluate<T: Precision>(
         },
         "bounds": "lower/upper bound the inside probability without quadrature: half-planes, Bonferroni, inscribed Mahalanobis ellipse",
         "equivalent_index_definition": "Phi^-1(1 - outside) / 3",
-    }))
+    });
+    if let (Some(serde_json::Value::Object(extra)), Some(obj)) = (bound, out.as_object_mut()) {
+        obj.extend(extra);
+    }
+    Ok(out)
 }
 
 /// Computes the zone probability; `Err` carries the one-line message.
