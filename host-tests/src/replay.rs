@@ -71,7 +71,7 @@ pub const BOUND_SEED: u64 = 1;
 /// Confidence bounds on the predicted yield from the learned baseline.
 #[derive(Clone, Copy, Debug)]
 pub struct BoundSummary {
-    /// Samples the baseline was estimated from (learned minus screened out).
+    /// Samples the baseline was estimated from (those kept by the Phase I screen).
     pub size: u32,
     /// Lower bound on the in-zone probability.
     pub inside_lower: f64,
@@ -240,7 +240,7 @@ pub fn run_with_progress<const N: usize>(
         let y = z64.probability(&m2, &c2).map_err(|e| e.to_string())?;
         inside_predicted = Some(y.inside);
         ppm = Some(y.capability().ppm);
-        let size = s.learn.saturating_sub(w.screened_out());
+        let size = m.gate().baseline_size().unwrap_or(s.learn);
         let mut draws = vec![0.0f64; BOUND_DRAWS as usize];
         bound = z64
             .yield_bound(

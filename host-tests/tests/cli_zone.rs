@@ -245,6 +245,32 @@ fn zone_errors_are_one_line_exit_two() {
             "--draws",
             "0",
         ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--circle",
+            "0,0,1",
+            "--baseline-size",
+            "20",
+            "--draws",
+            "4000000000",
+        ],
+        &[
+            "zone", "--mean", "0,0", "--cov", "1,0,1", "--circle", "0,0,1", "--draws", "100",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0",
+            "--cov",
+            "1,0,1",
+            "--circle",
+            "0,0,1",
+            "--known-covariance",
+        ],
     ] {
         let (code, stdout, stderr) = run(args);
         assert_eq!(code, 2, "{args:?}: {stderr}");

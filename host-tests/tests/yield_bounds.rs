@@ -15,7 +15,7 @@ use covgate_host::seeded::Rng;
 const MEAN: [f64; 2] = [4.0, -3.0];
 const COV: [[f64; 2]; 2] = [[64.0, 19.2], [19.2, 36.0]];
 
-fn zones() -> [(&'static str, Zone<f64>); 4] {
+fn zones() -> [(&'static str, Zone<f64>); 5] {
     let inf = f64::INFINITY;
     [
         (
@@ -33,6 +33,11 @@ fn zones() -> [(&'static str, Zone<f64>); 4] {
         (
             "one-side",
             Zone::Rect(RectZone::new([-inf, -inf], [20.0, inf]).unwrap()),
+        ),
+        // A one-sided limit on the second axis: reaches the second row of the pivot's factor.
+        (
+            "one-y",
+            Zone::Rect(RectZone::new([-inf, -inf], [inf, 9.0]).unwrap()),
         ),
     ]
 }
@@ -60,7 +65,7 @@ fn coverage_by_simulation() {
     let conf = 0.95;
     let cases: Vec<(usize, usize)> = [20usize, 50, 200]
         .iter()
-        .flat_map(|&m| (0..4).map(move |z| (m, z)))
+        .flat_map(|&m| (0..5).map(move |z| (m, z)))
         .collect();
     let results: Vec<(usize, &str, f64, f64, f64)> = std::thread::scope(|s| {
         let handles: Vec<_> = cases
@@ -118,18 +123,19 @@ fn coverage_by_simulation() {
     for (m, name, truth, cov, gap) in &results {
         println!("  {m:<4} {name:<8} {truth:.6}     {cov:.3}     {gap:.5}");
     }
-    // Never below the nominal level beyond Monte Carlo error. The GPQ bound is conservative
-    // around a centred process (coverage 0.97-0.999 for the three closed zones: the yield sits
-    // near its maximum over the mean, so every drawn mean lowers it), and for a one-sided zone
-    // it is within Monte Carlo error of nominal once m >= 50 (at m = 20 the Wishart pivot's
-    // marginal has m - 2 degrees of freedom where the exact one-sided interval uses m - 1,
-    // which makes it slightly conservative).
+    // Never below the nominal level beyond Monte Carlo error. At this process (mean about
+    // 0.6 sd from the centres of the closed zones) the bound is conservative for the closed
+    // zones (coverage 0.97-0.999: while the mean's uncertainty exceeds its offset, a drawn
+    // mean mostly lowers the yield); for one-sided limits it is within Monte Carlo error of
+    // nominal from m = 50, slightly above it in fact (the bivariate pivot's marginal has
+    // m - 2 degrees of freedom where the exact one-sided interval has m - 1, an excess that
+    // shrinks like 1 / m).
     for (m, name, _, cov, _) in &results {
         assert!(
             *cov >= conf - half,
             "m {m} {name}: coverage {cov} below {conf} - {half:.3}"
         );
-        if *name == "one-side" && *m >= 50 {
+        if name.starts_with("one") && *m >= 50 {
             assert!(
                 (cov - conf).abs() <= half,
                 "m {m} {name}: coverage {cov} outside {conf} +- {half:.3}"

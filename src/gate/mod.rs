@@ -211,6 +211,15 @@ impl<T: Real, const N: usize> Gate<T, N> {
         self.limit
     }
 
+    /// The number of observations behind the baseline, when the limit names it (Phase I and
+    /// Phase II limits); `None` for a chi-square or fixed limit.
+    pub fn baseline_size(&self) -> Option<u32> {
+        match self.kind {
+            Limit::PhaseII { m, .. } | Limit::PhaseI { m, .. } => Some(m),
+            Limit::ChiSquare { .. } | Limit::Fixed(_) => None,
+        }
+    }
+
     /// Which limit this is.
     pub fn kind(&self) -> Limit<T> {
         self.kind

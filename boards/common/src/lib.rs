@@ -209,7 +209,7 @@ pub fn replay<W: Write>(out: &mut W) {
             // draws, seed 1: the same bits on every core and on the host.
             let b = m.gate().baseline();
             let mut draws = [0.0f32; 64];
-            let size = 100 - w.screened_out();
+            let size = m.gate().baseline_size().unwrap_or(0);
             let bound = CircleZone::new([0.0, 0.0], 60.0)
                 .map(Zone::Circle)
                 .ok()

@@ -35,7 +35,7 @@ pub struct Args {
     #[arg(long, value_name = "C", allow_hyphen_values = true)]
     pub confidence: Option<f64>,
     /// Number of draws for the bounds.
-    #[arg(long, value_name = "K", default_value_t = 4000)]
+    #[arg(long, value_name = "K", default_value_t = DEFAULT_DRAWS)]
     pub draws: u32,
     /// Seed of the draws (the same seed gives the same bounds).
     #[arg(long, value_name = "S", default_value_t = 1)]
@@ -44,6 +44,11 @@ pub struct Args {
     #[arg(long)]
     pub known_covariance: bool,
 }
+
+/// Draws behind the bounds unless `--draws` says otherwise.
+pub const DEFAULT_DRAWS: u32 = 4000;
+/// At most this many draws (a buffer of 80 MB in f64).
+pub const MAX_DRAWS: u32 = 10_000_000;
 
 /// Method line of the confidence bounds, shared with `covgate replay`.
 pub const BOUND_METHOD: &str = "generalized pivotal quantities: covariance from its Wishart pivot (Bartlett draws), mean given it, zone probability per draw, quantile over the draws; assumes independent normal baseline samples";
@@ -60,8 +65,8 @@ pub fn bound_fields<T: Precision>(
     seed: u64,
     uncertainty: Uncertainty,
 ) -> Result<serde_json::Value, String> {
-    if draws == 0 {
-        return Err("--draws: need at least one draw".into());
+    if draws == 0 || draws > MAX_DRAWS {
+        return Err(format!("--draws: need 1 to {MAX_DRAWS} draws, got {draws}"));
     }
     let mut buf = vec![T::ZERO; draws as usize];
     let b = zone
@@ -158,6 +163,17 @@ fn evaluate<T: Precision>(
             .to_string()
     })?;
     let b = zone.bounds(&m, &c).map_err(|e| e.to_string())?;
+    if a.baseline_size.is_none() {
+        let stray = [
+            (a.confidence.is_some(), "--confidence"),
+            (a.draws != DEFAULT_DRAWS, "--draws"),
+            (a.seed != 1, "--seed"),
+            (a.known_covariance, "--known-covariance"),
+        ];
+        if let Some((_, name)) = stray.iter().find(|(given, _)| *given) {
+            return Err(format!("{name}: needs --baseline-size"));
+        }
+    }
     let conf = match (a.baseline_size, a.confidence) {
         (None, Some(_)) => return Err("--confidence: needs --baseline-size".into()),
         (Some(size), level) => Some((size, level.unwrap_or(0.95))),
