@@ -107,13 +107,5 @@ pub fn normal_tails32(x: f32) -> (f32, f32) {
         p = p * t + c;
     }
     // z^2 = x^2 / 2 from x itself: one rounding fewer than squaring z.
-    let small = 0.5 * t * exp32(p - x * x * 0.5);
-    let large = 1.0 - small;
-    if x < 0.0 {
-        (small, large)
-    } else if x >= 0.0 {
-        (large, small)
-    } else {
-        (x, x)
-    }
+    super::precision::tails_from_smaller(x, 0.5 * t * exp32(p - x * x * 0.5))
 }

@@ -55,14 +55,7 @@ impl Precision for f64 {
     }
     #[inline]
     fn normal_tails(x: f64) -> (f64, f64) {
-        let small = norm_sf(x.abs());
-        if x < 0.0 {
-            (small, 1.0 - small)
-        } else if x >= 0.0 {
-            (1.0 - small, small)
-        } else {
-            (x, x)
-        }
+        tails_from_smaller(x, norm_sf(x.abs()))
     }
 }
 
@@ -89,5 +82,18 @@ impl Precision for f32 {
     #[inline]
     fn normal_tails(x: f32) -> (f32, f32) {
         normal_tails32(x)
+    }
+}
+
+/// `(P(Z <= x), P(Z > x))` from the smaller tail `P(Z > |x|)`; NaN gives NaN.
+#[inline]
+pub(crate) fn tails_from_smaller<T: Real>(x: T, small: T) -> (T, T) {
+    let large = T::ONE - small;
+    if x < T::ZERO {
+        (small, large)
+    } else if x >= T::ZERO {
+        (large, small)
+    } else {
+        (x, x)
     }
 }

@@ -174,23 +174,18 @@ fn evaluate<T: Precision>(
             return Err(format!("{name}: needs --baseline-size"));
         }
     }
-    let conf = match (a.baseline_size, a.confidence) {
-        (None, Some(_)) => return Err("--confidence: needs --baseline-size".into()),
-        (Some(size), level) => Some((size, level.unwrap_or(0.95))),
-        (None, None) => None,
-    };
     let uncertainty = if a.known_covariance {
         Uncertainty::MeanOnly
     } else {
         Uncertainty::MeanAndCovariance
     };
-    let bound = match conf {
-        Some((size, level)) => Some(bound_fields(
+    let bound = match a.baseline_size {
+        Some(size) => Some(bound_fields(
             &zone,
             &m,
             &c,
             size,
-            level,
+            a.confidence.unwrap_or(0.95),
             a.draws,
             a.seed,
             uncertainty,
