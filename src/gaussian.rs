@@ -16,8 +16,11 @@ pub enum FreezeError {
     NotFinite,
     /// The covariance is not positive definite (singular: some direction has no spread).
     Degenerate,
-    /// The covariance is positive definite but too ill-conditioned to gate on in this
-    /// precision: smallest over largest eigenvalue below `sqrt(EPSILON)`.
+    /// The covariance is positive definite but its axes are so strongly correlated that it is
+    /// too ill-conditioned to gate on in this precision: smallest over largest eigenvalue of
+    /// the correlation matrix below `sqrt(EPSILON)`. Judged on the correlation matrix, so the
+    /// units of each axis never matter (micrometres beside millimetres, a position beside a
+    /// temperature).
     IllConditioned,
     /// A quantity needed by the integer gate does not fit its integer type.
     OutOfRange,
@@ -53,8 +56,11 @@ impl From<EstimateError> for FreezeError {
 /// `|z|^2` with `z` from forward substitution `L z = x - mean` (whitening): `N (N + 1) / 2`
 /// multiply-adds and `N` multiplications, no division; for 2-D that is 5 multiplications.
 /// Relative error of `d^2`: about `N EPSILON / rcond`, where `rcond` (the smallest over the
-/// largest eigenvalue, checked at freeze to be at least `sqrt(EPSILON)`) bounds the
-/// amplification.
+/// largest eigenvalue of the correlation matrix, checked at freeze to be at least
+/// `sqrt(EPSILON)`) bounds the amplification. Cholesky factorization and forward substitution
+/// are equivariant under a scaling of each axis (van der Sluis 1969: the error depends on the
+/// scaled, not the raw, condition number), so rescaling an axis, changing its unit, leaves
+/// `d^2` the same to rounding.
 ///
 /// Size: `N + N^2 + N` values of `T` (2-D `f32`: 32 bytes).
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -76,9 +82,8 @@ impl<T: Real, const N: usize> Baseline<T, N> {
     /// with resolution `q_i` to each variance (common practice: a uniform rounding error of
     /// width `q` has variance `q^2 / 12`, independent of the process). Every variance is then at
     /// least `q_i^2 / 12` and, with all `q_i > 0`, the matrix is positive definite: a baseline
-    /// whose readings never changed freezes, unless its other axes are so much wider that the
-    /// result is [`FreezeError::IllConditioned`] (in `f32`, wider than about 1/sqrt(sqrt(eps)),
-    /// some 50 times the resolution floor in standard deviation). A negative or non-finite `q_i` is
+    /// whose readings never changed freezes, however much wider its other axes are (the
+    /// conditioning is judged on the correlation matrix). A negative or non-finite `q_i` is
     /// [`FreezeError::NotFinite`]; `q_i = 0` adds nothing on that axis.
     pub fn with_resolution(
         mean: [T; N],
@@ -107,14 +112,7 @@ impl<T: Real, const N: usize> Baseline<T, N> {
         if !finite {
             return Err(FreezeError::NotFinite);
         }
-        let ev = symmetric_eigenvalues(&cov);
-        let (lo, hi) = (ev[0], ev[N - 1]);
-        if !(lo > T::ZERO) {
-            return Err(FreezeError::Degenerate);
-        }
-        if lo < hi * T::EPSILON.sqrt() {
-            return Err(FreezeError::IllConditioned);
-        }
+        check_conditioning(&cov)?;
         let (chol, inv_diag) = cholesky(&cov).ok_or(FreezeError::Degenerate)?;
         Ok(Baseline {
             mean,
@@ -149,13 +147,7 @@ impl<T: Real, const N: usize> Baseline<T, N> {
             chol: l,
             inv_diag,
         };
-        let ev = symmetric_eigenvalues(b.covariance().matrix());
-        if !(ev[0] > T::ZERO) {
-            return Err(FreezeError::Degenerate);
-        }
-        if ev[0] < ev[N - 1] * T::EPSILON.sqrt() {
-            return Err(FreezeError::IllConditioned);
-        }
+        check_conditioning(b.covariance().matrix())?;
         Ok(b)
     }
 
@@ -261,11 +253,57 @@ impl<T: Real, const N: usize> Baseline<T, N> {
         self.whiten(x).iter().fold(T::ZERO, |s, &v| s + v * v)
     }
 
-    /// Smallest over largest eigenvalue of the covariance (1 for a circular one).
+    /// Smallest over largest eigenvalue of the covariance (1 for a circular one). Depends on
+    /// the units of the axes; the integer gate's band uses it.
     pub fn reciprocal_condition(&self) -> T {
         let ev = symmetric_eigenvalues(self.covariance().matrix());
         ev[0] / ev[N - 1]
     }
+
+    /// Smallest over largest eigenvalue of the correlation matrix: 1 for uncorrelated axes
+    /// whatever their units, near 0 for nearly collinear ones. Freezing refuses a value below
+    /// `sqrt(EPSILON)`; the relative error of `d^2` is about `N EPSILON` over this value.
+    pub fn correlation_condition(&self) -> T {
+        correlation_eigenvalues(self.covariance().matrix()).map_or(T::ZERO, |ev| ev[0] / ev[N - 1])
+    }
+}
+
+/// Eigenvalues (ascending) of the correlation matrix `D^-1/2 C D^-1/2`, `D = diag(C)`; `None`
+/// when a variance is not positive.
+fn correlation_eigenvalues<T: Real, const N: usize>(cov: &[[T; N]; N]) -> Option<[T; N]> {
+    let mut sd = [T::ZERO; N];
+    for i in 0..N {
+        let v = cov[i][i];
+        if !(v > T::ZERO) {
+            return None;
+        }
+        sd[i] = v.sqrt();
+    }
+    let mut r = [[T::ONE; N]; N];
+    for i in 0..N {
+        for j in 0..N {
+            if i != j {
+                // sqrt(c_ii) sqrt(c_jj), not sqrt(c_ii c_jj): no overflow for huge variances.
+                r[i][j] = cov[i][j] / (sd[i] * sd[j]);
+            }
+        }
+    }
+    Some(symmetric_eigenvalues(&r))
+}
+
+/// Refuses a covariance that is not positive definite ([`FreezeError::Degenerate`]) or whose
+/// correlation matrix has a reciprocal condition below `sqrt(EPSILON)`
+/// ([`FreezeError::IllConditioned`]). Scale-free: the units of the axes never matter.
+fn check_conditioning<T: Real, const N: usize>(cov: &[[T; N]; N]) -> Result<(), FreezeError> {
+    let ev = correlation_eigenvalues(cov).ok_or(FreezeError::Degenerate)?;
+    let (lo, hi) = (ev[0], ev[N - 1]);
+    if !(lo > T::ZERO) {
+        return Err(FreezeError::Degenerate);
+    }
+    if lo < hi * T::EPSILON.sqrt() {
+        return Err(FreezeError::IllConditioned);
+    }
+    Ok(())
 }
 
 #[cfg(test)]
@@ -287,15 +325,25 @@ mod tests {
         // A resolution floor regularizes a reading that never changed (q = 1: var 1/12).
         let b = Baseline::with_resolution([5.0f32, 5.0], &zero, [1.0, 1.0]).unwrap();
         assert!((b.mahalanobis2(&[6.0, 5.0]) - 12.0).abs() < 1e-5);
-        let thin = Covariance::from_matrix([[1.0f32, 0.0], [0.0, 1e-5]]);
-        assert_eq!(
-            Baseline::new([0.0; 2], &thin),
-            Err(FreezeError::IllConditioned)
-        );
+        // Uncorrelated axes in very different units freeze in either precision.
+        let thin = Covariance::from_matrix([[1.0f32, 0.0], [0.0, 1e-10]]);
+        assert!(Baseline::new([0.0; 2], &thin).is_ok());
         assert!(Baseline::new(
             [0.0f64; 2],
-            &Covariance::from_matrix([[1.0, 0.0], [0.0, 1e-5]])
+            &Covariance::from_matrix([[1e12, 0.0], [0.0, 1e-12]])
         )
         .is_ok());
+        // Nearly collinear axes are refused, whatever the units: correlation 1 - 1e-5 gives a
+        // correlation-matrix condition of about 5e-6, below sqrt(eps_f32) = 3.5e-4.
+        let r = 1.0f32 - 1e-5;
+        let s = [1e-3f32, 1e3];
+        let collinear = Covariance::from_matrix([
+            [s[0] * s[0], r * s[0] * s[1]],
+            [r * s[0] * s[1], s[1] * s[1]],
+        ]);
+        assert_eq!(
+            Baseline::new([0.0; 2], &collinear),
+            Err(FreezeError::IllConditioned)
+        );
     }
 }

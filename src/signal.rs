@@ -1,17 +1,17 @@
 //! Go / no-go outputs: which lines a verdict drives, and (feature `embedded-hal`) an adapter
 //! that drives them through `embedded_hal::digital::OutputPin`.
 //!
-//! Fail-safe by design: only [`Verdict::Go`] activates the go line; every other verdict
-//! (no-go for any reason, not ready) activates the no-go line. On a change the line being
-//! released is released first, so for an instant both are inactive, which downstream wiring
-//! must read as no-go. After a pin error the physical state of the lines is not known (a go
-//! line that failed to release may still be active while no-go is driven active): downstream
-//! wiring must let no-go win when both are asserted. The adapter then latches a fault: it
-//! keeps driving the safe state (go released, no-go active) and refuses to drive go again
-//! until [`GoNoGo::clear_fault`] succeeds.
+//! Defaults to no-go by design (what "fail-safe" means here, and nothing more): only
+//! [`Verdict::Go`] activates the go line; every other verdict (no-go for any reason, not ready)
+//! activates the no-go line. On a change the line being released is released first, so for an
+//! instant both are inactive, which downstream wiring must read as no-go. After a pin error the
+//! physical state of the lines is not known (a go line that failed to release may still be
+//! active while no-go is driven active): downstream wiring must let no-go win when both are
+//! asserted. The adapter then latches a fault: it keeps driving the safe state (go released,
+//! no-go active) and refuses to drive go again until [`GoNoGo::clear_fault`] succeeds.
 //!
-//! This drives signals, not a safety function: wiring and the use of these lines follow local
-//! codes and licensed practice (see the README).
+//! This drives signals; it is not a rated safety function (no SIL or PL rating): wiring and the
+//! use of these lines follow local codes and licensed practice (see the README).
 
 use crate::Verdict;
 
@@ -82,7 +82,8 @@ mod hal {
         }
     }
 
-    /// Two output pins driven from verdicts, fail-safe (see the module docs).
+    /// Two output pins driven from verdicts, defaulting to no-go (see the module docs; not a
+    /// rated safety function).
     pub struct GoNoGo<G, N> {
         go: G,
         nogo: N,

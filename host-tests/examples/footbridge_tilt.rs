@@ -4,6 +4,10 @@
 //!
 //! The data is invented for the demo (a seeded generator below), not a real capture.
 //!
+//! This is structural monitoring: a drift alarm does not replace structural inspection or an
+//! engineer's assessment of the structure, and it is not a public warning system (README.md,
+//! Safety).
+//!
 //!     cargo run -p covgate-host --example footbridge_tilt
 
 use covgate::{Verdict, Watch, WatchConfig};

@@ -59,6 +59,10 @@ pub fn drilling() -> Scenario {
 
 /// Footbridge pier tilt node: two-axis tilt in microradians at 0.5 urad resolution, with a
 /// slow lean on the second axis from reading 300.
+///
+/// Invented structural-monitoring data: a drift alarm does not replace structural inspection or
+/// an engineer's assessment of the structure, and it is not a public warning system (README.md,
+/// Safety).
 pub fn footbridge() -> Scenario {
     let mut rng = Rng::from_seed(0xB41D_6E00);
     let mut csv = String::from("reading,x,y,temp_c\n");
@@ -80,7 +84,7 @@ pub fn footbridge() -> Scenario {
         story: "Footbridge pier tilt node: two-axis tilt (urad, 0.5 urad steps). The first 100 \
                 readings learn the baseline; from reading 300 the pier leans slowly along the \
                 second axis (0.02 urad per reading). Crosier's CUSUM (k 0.5, h 7.36 for an \
-                in-control ARL of 1000) notices the lean while single readings are still well \
+                in-control ARL of 1000) notices the lean while most single readings are still \
                 inside the gate. Alarms are acknowledged at once so that every one shows; an \
                 alarm before reading 300 is a false alarm.",
         csv,

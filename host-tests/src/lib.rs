@@ -19,3 +19,4 @@ pub mod quadrature;
 pub mod reference;
 pub mod replay;
 pub mod seeded;
+pub mod zone_cases;

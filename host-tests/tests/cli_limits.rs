@@ -19,7 +19,7 @@ fn limits_prints_the_chi_square_and_phase_limits() {
     let v: serde_json::Value = serde_json::from_str(stdout.trim()).unwrap();
     assert_eq!(v["dim"], 2);
     assert_eq!(v["alpha"], 0.01);
-    // df = 2 exact form: -2 ln(alpha) (REFERENCES, exact).
+    // df = 2 exact form: -2 ln(alpha) (docs/REFERENCES.md, exact).
     let chi2 = v["chi2"].as_f64().unwrap();
     assert!((chi2 - (-2.0 * 0.01f64.ln())).abs() < 1e-12);
     // Values from fixtures/limits/phase.csv (mpmath, 50 digits): p 2, m 20, alpha 0.01.

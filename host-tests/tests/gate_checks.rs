@@ -40,7 +40,7 @@ fn mahalanobis_matches_the_reference() {
             let sd = [c[0][0].sqrt(), c[1][1].sqrt()];
             let x = [mean[0] + u * sd[0], mean[1] + v * sd[1]];
             let want = reference::mahalanobis2(&mean, &c, &x).unwrap();
-            let rcond = b64.reciprocal_condition();
+            let rcond = b64.correlation_condition();
             // f64: relative error about N eps / rcond (Baseline docs); 64 N eps / rcond allowed.
             let tol64 = Tol::new(1e-300, 128.0 * f64::EPSILON / rcond);
             tol64
@@ -75,7 +75,10 @@ fn six_dimensional_distance_matches_the_reference() {
         let mean = [1.0, -2.0, 3.0, 0.5, 0.0, 10.0];
         let b = Baseline::new(mean, &Covariance::from_matrix(c)).unwrap();
         let want = reference::mahalanobis2(&mean, &c, &x).unwrap();
-        let tol = Tol::new(1e-300, 64.0 * 6.0 * f64::EPSILON / b.reciprocal_condition());
+        let tol = Tol::new(
+            1e-300,
+            64.0 * 6.0 * f64::EPSILON / b.correlation_condition(),
+        );
         tol.check("d2 6-D", b.mahalanobis2(&x), want)
             .map_err(TestCaseError::fail)
     });
@@ -345,7 +348,7 @@ fn f32_gate_agrees_with_f64_gate_away_from_the_limit() {
                 Limit::ChiSquare { alpha: 0.01f32 },
             )
             .unwrap();
-            let rcond = g64.baseline().reciprocal_condition();
+            let rcond = g64.baseline().correlation_condition();
             let sd = [c[0][0].sqrt(), c[1][1].sqrt()];
             for (u, v) in pts {
                 let x = [u * sd[0], v * sd[1]];

@@ -33,7 +33,7 @@ pub fn bvn_upper_f64(h: f64, k: f64, r: f64) -> f64 {
 ///
 /// Method: Drezner & Wesolowsky (1990), J. Statist. Comput. Simul. 35: Gauss–Legendre with
 /// 5 points for `|r| < 0.8` (here in Genz's `asin` form, which needs no square root per node;
-/// see [`Orthant`]), and the same high-`|r|` expansion as [`bvn_upper_f64`] with 10 points
+/// see `Orthant` in this module), and the same high-`|r|` expansion as [`bvn_upper_f64`] with 10 points
 /// above. Absolute error below 2e-6 (tested against mpmath).
 pub fn bvn_upper_f32(h: f32, k: f32, r: f32) -> f32 {
     if r.abs() < LOW5_SPLIT as f32 {

@@ -132,7 +132,7 @@ impl ChiSquare {
     ///
     /// `df = 2` in closed form, `-2 ln alpha`. Otherwise Newton's method on the logarithm of
     /// the smaller tail (`ln Q(x) = ln alpha` for `alpha <= 1/2`, `ln P(x) = ln(1 - alpha)`
-    /// above), safeguarded by bisection ([`solve_increasing`]); relative error a few ulp of `T`
+    /// above), safeguarded by bisection (`solve_increasing` in `math::root`); relative error a few ulp of `T`
     /// (tested: 1e-12 in `f64`, 1e-5 in `f32`, against mpmath). [`LimitError::BadProbability`]
     /// unless `0 < alpha < 1`.
     pub fn quantile_upper<T: Real>(&self, alpha: T) -> Result<T, LimitError> {
@@ -175,7 +175,7 @@ mod tests {
 
     #[test]
     fn closed_forms_for_two_degrees() {
-        // df = 2: Q(x) = exp(-x/2), quantile -2 ln alpha (exact forms, REFERENCES).
+        // df = 2: Q(x) = exp(-x/2), quantile -2 ln alpha (exact forms, docs/REFERENCES.md).
         let c = ChiSquare::new(2).unwrap();
         assert!((c.upper(3.0f64) - (-1.5f64).exp()).abs() < 1e-16);
         assert_eq!(c.quantile_upper(0.05f64).unwrap(), -2.0 * 0.05f64.ln());

@@ -67,16 +67,25 @@ impl<T: Real> Covariance<T, 2> {
     /// Principal axes of the 2-D covariance, in closed form.
     ///
     /// For `C = [a b; b c]`: `lambda = (a + c) / 2 +- hypot((a - c) / 2, b)`, the smaller one
-    /// taken as `det / lambda_max` to avoid cancellation; angle of the major axis
+    /// taken as `det / lambda_max` to avoid cancellation, with `det` from [`det2`](crate::math::det2)
+    /// (accurate even for strongly correlated axes); angle of the major axis
     /// `atan2(2 b, a - c) / 2` (the standard eigen-decomposition of a symmetric 2x2 matrix).
     /// A circular or all-zero covariance gives angle 0.
     pub fn ellipse(&self) -> Ellipse<T> {
+        let [[a, b], [_, c]] = self.m;
+        self.ellipse_with_det(crate::math::det2(a, b, c))
+    }
+
+    /// As [`ellipse`](Self::ellipse), with the determinant supplied by a caller that knows it
+    /// more accurately than the entries do (a transformed matrix whose determinant follows
+    /// from the original's).
+    pub(crate) fn ellipse_with_det(&self, det: T) -> Ellipse<T> {
         let [[a, b], [_, c]] = self.m;
         let half = T::from_f64(0.5);
         let mid = (a + c) * half;
         let rad = ((a - c) * half).hypot(b);
         let big = mid + rad;
-        let det = (a * c - b * b).max(T::ZERO);
+        let det = det.max(T::ZERO);
         let small = if big > T::ZERO {
             (det / big).min(big)
         } else {

@@ -18,7 +18,7 @@ pub enum StoreError<E> {
     Flash(E),
     /// The slots do not fit the flash, are not erase-aligned, or are smaller than a record.
     Layout,
-    /// The payload does not fit a record (at most [`MAX_RECORD`] - 12 bytes) or the caller's
+    /// The payload does not fit a record (at most `MAX_RECORD` (256) - 12 bytes) or the caller's
     /// buffer.
     TooLarge,
 }

@@ -6,7 +6,8 @@ use crate::math::Real;
 /// Multivariate EWMA (Lowry, Woodall, Champ & Rigdon 1992): `Z_i = lambda w_i + (1 - lambda)
 /// Z_{i-1}`, `Z_0 = 0`, statistic `T^2_i = Z_i' Sigma_Z^-1 Z_i`. In whitened coordinates
 /// `Sigma_Z = c_i I` with the exact time-varying `c_i = lambda (1 - (1 - lambda)^{2i}) /
-/// (2 - lambda)` (NIST/SEMATECH e-Handbook 6.5.4.3) or its asymptote `lambda / (2 - lambda)`.
+/// (2 - lambda)` (NIST/SEMATECH e-Handbook 6.3.4.3, Multivariate EWMA Charts) or its asymptote
+/// `lambda / (2 - lambda)`.
 #[derive(Clone, Copy, Debug, PartialEq)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Mewma<T, const N: usize> {

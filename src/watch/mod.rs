@@ -10,8 +10,9 @@
 //! [`Monitor`] is the armed part alone (gate, zone, charts, alarm latch): its size is what a
 //! node keeps while it runs (2-D `f32`, every chart on: see the `footprint` host test).
 //!
-//! Fail-safe: every verdict is no-go while learning, on a refused sample, while an alarm is
-//! latched, and when the monitor finds its own state inconsistent ([`Chart::Fault`]).
+//! Defaults to no-go (not a rated safety function): every verdict is no-go while learning, on a
+//! refused sample, while an alarm is latched, and when the monitor finds its own state
+//! inconsistent ([`Chart::Fault`]).
 
 mod charts;
 mod rule;
@@ -292,7 +293,7 @@ impl<T: Precision, const N: usize> Monitor<T, N> {
         }
     }
 
-    /// The consistency check behind the fail-safe: every chart's state finite and in range.
+    /// The consistency check behind the no-go default: every chart's state finite and in range.
     pub fn is_sane(&self) -> bool {
         self.mewma.as_ref().is_none_or(|c| c.is_sane())
             && self.mcusum.as_ref().is_none_or(|c| c.is_sane())

@@ -2,12 +2,19 @@
 //!
 //! The drilling-cell demo capture (hole offsets in micrometres) is streamed at 10 samples a
 //! second through a `Watch` (learn 100 parts, Phase II gate at alpha 0.0027, 60 um positional
-//! tolerance circle, MEWMA drift chart). Every verdict drives two GPIO lines through
-//! `covgate::signal::GoNoGo` and is logged over RTT with defmt.
+//! tolerance circle, MEWMA drift chart). Every verdict is shown on the two LEDs and logged
+//! over RTT with defmt.
+//!
+//! The go / no-go output lines are taken by `covgate::signal::GoNoGo`, which drives them to
+//! the safe state (go released, no-go active) at start. In the default build the demo data never
+//! drives them: they stay at no-go for as long as the firmware runs. Only with the cargo feature
+//! `drive-outputs-from-demo` do they follow the verdicts. Never connect the lines to equipment
+//! while demo data drives them; they are not a rated safety function (see README.md).
 //!
 //! Pins (see README.md for wiring and cautions):
-//! - go line: P1.01, active high; mirrored on LED 1 (P0.13)
-//! - no-go line: P1.02, active high; mirrored on LED 2 (P0.14)
+//! - go line: P1.01, active high; LED 1 (P0.13) on for a go verdict
+//! - no-go line: P1.02, active high; LED 2 (P0.14) on for a no-go verdict (with the feature,
+//!   the LEDs mirror the lines as driven, and LED 2 also lights on an output fault)
 //! - button 1 (P0.11): re-learn the baseline from the next 100 samples
 //! - button 2 (P0.12): acknowledge a latched drift alarm
 //!
@@ -23,7 +30,7 @@
 #![no_main]
 
 use cortex_m_rt::entry;
-use covgate::signal::{GoNoGo, Polarity};
+use covgate::signal::{GoNoGo, Lines, Polarity};
 use covgate::{CircleZone, Verdict, Watch, WatchConfig, Zone};
 use defmt_rtt as _;
 use embedded_hal::digital::{InputPin, OutputPin};
@@ -39,6 +46,13 @@ const RATE_HZ: u32 = 10;
 
 /// Watchdog period in ticks of the 32.768 kHz low-frequency clock: 0.5 s, five sample periods.
 const WATCHDOG_TICKS: u32 = 16_384;
+
+/// What the go / no-go output lines do in this build (logged at start).
+#[cfg(feature = "drive-outputs-from-demo")]
+const OUTPUTS: &str = "go / no-go lines follow the verdicts (feature drive-outputs-from-demo)";
+/// What the go / no-go output lines do in this build (logged at start).
+#[cfg(not(feature = "drive-outputs-from-demo"))]
+const OUTPUTS: &str = "go / no-go lines held at no-go; the LEDs show the verdicts";
 
 /// A button on a pulled-up input: `true` once per press (a high-to-low change between polls).
 struct Button<P> {
@@ -60,6 +74,33 @@ impl<P: InputPin> Button<P> {
         self.was_down = down;
         press
     }
+}
+
+/// Feature `drive-outputs-from-demo`: the output lines follow the verdict. Returns the lines as
+/// last driven, `None` while an output fault is latched (the physical state is not known).
+#[cfg(feature = "drive-outputs-from-demo")]
+fn outputs<G: OutputPin, N: OutputPin, T>(
+    lines: &mut GoNoGo<G, N>,
+    verdict: &Verdict<T>,
+) -> Option<Lines> {
+    if let Err(e) = lines.apply(verdict) {
+        defmt::error!(
+            "output fault, lines held in the safe state: {}",
+            defmt::Debug2Format(&e)
+        );
+    }
+    lines.lines()
+}
+
+/// Default build: the output lines are never driven from the verdicts and stay in the safe
+/// state `GoNoGo::new` drove (go released, no-go active). Returns the lines the verdict asks
+/// for, which only the LEDs show.
+#[cfg(not(feature = "drive-outputs-from-demo"))]
+fn outputs<G: OutputPin, N: OutputPin, T>(
+    _lines: &mut GoNoGo<G, N>,
+    verdict: &Verdict<T>,
+) -> Option<Lines> {
+    Some(Lines::for_verdict(verdict))
 }
 
 /// The LEDs of the kit are active low: on for an active line.
@@ -114,7 +155,7 @@ fn main() -> ! {
             cortex_m::asm::wfi();
         }
     };
-    defmt::info!("covgate nrf52840-dk: learning 100 samples");
+    defmt::info!("covgate nrf52840-dk: learning 100 samples; {}", OUTPUTS);
 
     let mut samples = covgate_firmware::samples();
     let mut index: u32 = 0;
@@ -138,13 +179,7 @@ fn main() -> ! {
             defmt::info!("alarm acknowledged");
         }
         let step = watch.push(x);
-        if let Err(e) = lines.apply(&step.verdict) {
-            defmt::error!(
-                "output fault, lines held in the safe state: {}",
-                defmt::Debug2Format(&e)
-            );
-        }
-        let state = lines.lines();
+        let state = outputs(&mut lines, &step.verdict);
         mirror(&mut led_go, state.is_some_and(|l| l.go));
         mirror(&mut led_nogo, state.is_none_or(|l| l.nogo));
         match &step.verdict {
