@@ -39,9 +39,10 @@ pub fn ncx2_cdf(x: f64, p: u32, delta: f64) -> f64 {
 }
 
 /// In-control ARL of the MEWMA with the asymptotic covariance, by the Markov chain of
-/// Runger & Prabhu (1996), J. Quality Technology 28(1): with whitened data the chart depends
-/// only on `u = |Z|^2 / lambda^2`, which moves from `u` to a noncentral chi-square with `p`
-/// degrees of freedom and noncentrality `(1 - lambda)^2 u`; the in-control region
+/// Runger & Prabhu (1996), Journal of the American Statistical Association 91(436): with
+/// whitened data the chart depends only on `u = |Z|^2 / lambda^2`, which moves from `u` to a
+/// noncentral chi-square with `p` degrees of freedom and noncentrality `(1 - lambda)^2 u`; the
+/// in-control region
 /// `T^2 <= h` is `u <= h / (lambda (2 - lambda))`, cut into `states` equal cells represented
 /// by their midpoints. `ARL = ((I - Q)^-1 1)` from the cell holding `u = 0`.
 pub fn mewma_arl0(p: u32, lambda: f64, h: f64, states: usize) -> f64 {

@@ -1,4 +1,4 @@
-//! The go / no-go adapter: fail-safe start, release-before-activate across both pins,
+//! The go / no-go adapter: no-go at start, release-before-activate across both pins,
 //! polarity, and the latched safe state after a pin error. One test uses embedded-hal-mock;
 //! the ordering tests use pins that write into one shared log, so the order across the two
 //! pins is checked, not only each pin's own sequence.

@@ -115,7 +115,7 @@ pub enum Chart {
     Dispersion,
     /// Hotelling's T^2 of a subgroup mean.
     Subgroup,
-    /// The monitor's own state failed its consistency check (fail-safe).
+    /// The monitor's own state failed its consistency check (the verdict defaults to no-go).
     Fault,
 }
 
@@ -158,7 +158,7 @@ pub enum Reason<T> {
     OutsideZone(Distance<T>),
     /// The process is in alarm (latched until acknowledged): no part passes.
     Alarm(Chart),
-    /// The sample itself was refused (NaN, infinity, overflow): fail-safe no-go.
+    /// The sample itself was refused (NaN, infinity, overflow): no-go by default.
     InvalidSample(SampleError),
 }
 
@@ -175,7 +175,7 @@ pub enum Verdict<T> {
 }
 
 impl<T> Verdict<T> {
-    /// `true` only for [`Verdict::Go`]: fail-safe, not-ready counts as no.
+    /// `true` only for [`Verdict::Go`]: not-ready counts as no (defaults to no-go).
     pub fn is_go(&self) -> bool {
         matches!(self, Verdict::Go(_))
     }
@@ -225,7 +225,7 @@ impl<T: Real, const N: usize> Gate<T, N> {
         self.kind
     }
 
-    /// The per-sample test: `d^2 <= limit`. A NaN coordinate gives `false` (fail-safe).
+    /// The per-sample test: `d^2 <= limit`. A NaN coordinate gives `false` (defaults to no-go).
     #[inline]
     pub fn passes(&self, x: &[T; N]) -> bool {
         self.baseline.mahalanobis2(x) <= self.limit

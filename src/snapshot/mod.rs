@@ -5,7 +5,7 @@
 //! restored baseline is bit-for-bit the saved one), the gate's false-alarm rate and baseline size, every chart's settings, the
 //! k-of-n rule, the zone, the samples counter and a latched alarm. What it does not keep: the
 //! running chart statistics; a restored monitor restarts its charts as after an
-//! acknowledgement, but a latched alarm stays latched across the power cycle (fail-safe).
+//! acknowledgement, but a latched alarm stays latched across the power cycle (the logic defaults to no-go; not a rated safety function).
 //!
 //! # Layout, version 1
 //!
