@@ -268,26 +268,10 @@ impl<T: Real, const N: usize> Baseline<T, N> {
     }
 }
 
-/// Eigenvalues (ascending) of the correlation matrix `D^-1/2 C D^-1/2`, `D = diag(C)`; `None`
+/// Eigenvalues (ascending) of the correlation matrix ([`Covariance::correlation`]); `None`
 /// when a variance is not positive.
 fn correlation_eigenvalues<T: Real, const N: usize>(cov: &[[T; N]; N]) -> Option<[T; N]> {
-    let mut sd = [T::ZERO; N];
-    for i in 0..N {
-        let v = cov[i][i];
-        if !(v > T::ZERO) {
-            return None;
-        }
-        sd[i] = v.sqrt();
-    }
-    let mut r = [[T::ONE; N]; N];
-    for i in 0..N {
-        for j in 0..N {
-            if i != j {
-                // sqrt(c_ii) sqrt(c_jj), not sqrt(c_ii c_jj): no overflow for huge variances.
-                r[i][j] = cov[i][j] / (sd[i] * sd[j]);
-            }
-        }
-    }
+    let r = Covariance::from_matrix(*cov).correlation().ok()?;
     Some(symmetric_eigenvalues(&r))
 }
 

@@ -127,8 +127,6 @@ fn disk<T: Precision>(f: &Frame<T>, r: T) -> Yield<T> {
     let two_r = r + r;
     // Distances from the mean to the two edges, each rounded once.
     let (to_right, to_left) = (r - mo, r + mo);
-    // 1 / sqrt(2 pi): the standard normal density's constant.
-    let c = T::from_f64(0.398_942_280_401_432_7);
     let (mut acc_in, mut acc_out) = (T::ZERO, T::ZERO);
     for p in 0..T::PANELS {
         // Panel [ua, ub] as offsets from the mean.
@@ -145,47 +143,31 @@ fn disk<T: Precision>(f: &Frame<T>, r: T) -> Yield<T> {
         } else {
             None
         };
-        let (mut pin, mut pout) = (T::ZERO, T::ZERO);
-        let scale;
-        match edge {
-            // u = side (r cos s): offset from the mean = side (gap - 2 r sin^2(s / 2)) with gap
-            // the distance from the mean to that edge; du = v ds.
+        let (mid, hw) = ((da + db) * half, (db - da) * half);
+        let (scale, (pin, pout)) = match edge {
+            // u = side (r cos s), s over [0, 2 s_half]; du = v ds; the offset from the mean is
+            // side (gap - 2 r sin^2(s / 2)), gap the distance from the mean to that edge.
             Some((gap, side, depth)) => {
-                let s_end = ((depth / two_r).max(T::ZERO).min(T::ONE)).sqrt().asin();
-                let hs = s_end; // s runs over [0, 2 s_end]: half-length s_end.
-                scale = hs;
-                for &(x, wt) in T::RULE.iter() {
-                    for sign in [-T::ONE, T::ONE] {
-                        let sh = hs * (T::ONE + sign * T::from_f64(x)) * half;
-                        let h = T::node_sin(sh);
-                        let v = r * T::node_sin(sh + sh);
-                        let z = side * (gap - two_r * h * h) / so;
-                        let dens = c / so * T::node_exp(-(z * z) * half);
-                        let (inside, below, above) = interval((-v - mi) / si, (v - mi) / si);
-                        let k = T::from_f64(wt) * v * dens;
-                        pin += k * inside;
-                        pout += k * (below + above);
-                    }
-                }
+                let s_half = ((depth / two_r).max(T::ZERO).min(T::ONE)).sqrt().asin();
+                let node = |x: T| {
+                    let sh = s_half * (T::ONE + x) * half;
+                    let h = T::node_sin(sh);
+                    let v = r * T::node_sin(sh + sh);
+                    (v, side * (gap - two_r * h * h) / so, v / so)
+                };
+                (s_half, panel_sums(node, mi, si))
             }
-            // Inner panel: z = offset / sd directly; v = sqrt((r - u)(r + u)); du = sd dz.
+            // z = offset / sd directly; du = sd dz; v = sqrt((r - u)(r + u)) from the two
+            // edge distances.
             None => {
-                let (mid, hw) = ((da + db) * half, (db - da) * half);
-                scale = hw / so;
-                for &(x, wt) in T::RULE.iter() {
-                    for sign in [-T::ONE, T::ONE] {
-                        let d = mid + sign * hw * T::from_f64(x);
-                        let v = ((to_right - d) * (to_left + d)).max(T::ZERO).sqrt();
-                        let z = d / so;
-                        let dens = c * T::node_exp(-(z * z) * half);
-                        let (inside, below, above) = interval((-v - mi) / si, (v - mi) / si);
-                        let k = T::from_f64(wt) * dens;
-                        pin += k * inside;
-                        pout += k * (below + above);
-                    }
-                }
+                let node = |x: T| {
+                    let d = mid + hw * x;
+                    let v = ((to_right - d) * (to_left + d)).max(T::ZERO).sqrt();
+                    (v, d / so, T::ONE)
+                };
+                (hw / so, panel_sums(node, mi, si))
             }
-        }
+        };
         acc_in += pin * scale;
         acc_out += pout * scale;
     }
@@ -193,6 +175,30 @@ fn disk<T: Precision>(f: &Frame<T>, r: T) -> Yield<T> {
         inside: clamp01(acc_in),
         outside: clamp01(outer_tails + acc_out),
     }
+}
+
+/// One panel's Gauss–Legendre sums of the inside and the outside integrand. `node` maps a
+/// rule node `x` in [-1, 1] to the half-chord `v`, the standardized offset `z` of the outer
+/// variable and the Jacobian factor; the inner probability over `|w| <= v` of the major-axis
+/// normal (mean `mi`, sd `si`) and its two tails are weighted by the standard density at `z`.
+/// Generic over `node`, so each panel kind compiles to its own loop.
+#[inline(always)]
+fn panel_sums<T: Precision>(node: impl Fn(T) -> (T, T, T), mi: T, si: T) -> (T, T) {
+    let half = T::from_f64(0.5);
+    // 1 / sqrt(2 pi): the standard normal density's constant.
+    let c = T::from_f64(0.398_942_280_401_432_7);
+    let (mut pin, mut pout) = (T::ZERO, T::ZERO);
+    for &(x, wt) in T::RULE.iter() {
+        for sign in [-T::ONE, T::ONE] {
+            let (v, z, jac) = node(sign * T::from_f64(x));
+            let dens = c * T::node_exp(-(z * z) * half);
+            let (inside, below, above) = interval((-v - mi) / si, (v - mi) / si);
+            let k = T::from_f64(wt) * jac * dens;
+            pin += k * inside;
+            pout += k * (below + above);
+        }
+    }
+    (pin, pout)
 }
 
 pub(super) fn circle<T: Precision>(
