@@ -45,6 +45,7 @@ impl From<EstimateError> for FreezeError {
         match e {
             EstimateError::TooFewSamples => FreezeError::TooFewSamples,
             EstimateError::Degenerate => FreezeError::Degenerate,
+            EstimateError::OutOfRange => FreezeError::NotFinite,
         }
     }
 }

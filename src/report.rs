@@ -121,7 +121,7 @@ impl<const N: usize, const L: usize> ReportFrame<N, L> {
         for v in mean {
             w.f32(v);
         }
-        for &v in self.moments.comoment() {
+        for v in self.moments.comoment().unwrap_or([0.0; L]) {
             w.f32(v);
         }
         for c in self.charts {

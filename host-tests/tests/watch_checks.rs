@@ -110,22 +110,103 @@ fn simulated_in_control_arl_of_each_chart() {
     assert!(within(s, 1000.0, 0.05), "subgroup {s}");
 }
 
+/// Run lengths by independent code (not covgate's charts), for the shifted ARLs: the MEWMA
+/// of Lowry et al. (1992) with the asymptotic covariance, `T^2 = |z|^2 (2 - lambda) / lambda`,
+/// and Crosier's (1988) MCUSUM, `C = |S + w|`, `S = 0` if `C <= k` else `(S + w)(1 - k / C)`,
+/// statistic `|S|`, both on whitened 2-D data shifted by `shift`. Returns mean and standard
+/// error over `runs` runs.
+fn reference_arl(
+    rng: &mut Rng,
+    runs: u32,
+    shift: [f64; 2],
+    mewma: Option<(f64, f64)>,
+    mcusum: Option<(f64, f64)>,
+) -> (f64, f64) {
+    let (mut s, mut s2) = (0.0, 0.0);
+    for _ in 0..runs {
+        let (mut z, mut t) = ([0.0f64; 2], 0u32);
+        loop {
+            t += 1;
+            let w = [rng.normal() + shift[0], rng.normal() + shift[1]];
+            let alarm = if let Some((lambda, h)) = mewma {
+                z = [
+                    lambda * w[0] + (1.0 - lambda) * z[0],
+                    lambda * w[1] + (1.0 - lambda) * z[1],
+                ];
+                (z[0] * z[0] + z[1] * z[1]) * (2.0 - lambda) / lambda > h
+            } else if let Some((k, h)) = mcusum {
+                let v = [z[0] + w[0], z[1] + w[1]];
+                let c = v[0].hypot(v[1]);
+                z = if c <= k {
+                    [0.0; 2]
+                } else {
+                    [v[0] * (1.0 - k / c), v[1] * (1.0 - k / c)]
+                };
+                z[0].hypot(z[1]) > h
+            } else {
+                unreachable!("one chart")
+            };
+            if alarm || t == 100_000 {
+                break;
+            }
+        }
+        let t = f64::from(t);
+        s += t;
+        s2 += t * t;
+    }
+    let n = f64::from(runs);
+    let mean = s / n;
+    (mean, ((s2 / n - mean * mean) / (n - 1.0)).sqrt())
+}
+
 #[test]
 fn out_of_control_arl_after_a_shift_of_noncentrality_one() {
     let mut rng = Rng::new(501);
     let shift = [std::f64::consts::FRAC_1_SQRT_2; 2]; // |shift| = 1
-    let runs = 5000;
-    let (m, _) = simulate::<2>(&mut rng, runs, 20_000, shift, mewma_chart(0.1, 8.64, false));
-    let (c, _) = simulate::<2>(&mut rng, runs, 20_000, shift, mcusum_chart(0.5, 5.5));
+    let runs = 20_000;
+    let (m, m_se) = simulate::<2>(&mut rng, runs, 20_000, shift, mewma_chart(0.1, 8.64, false));
+    let (c, c_se) = simulate::<2>(&mut rng, runs, 20_000, shift, mcusum_chart(0.5, 5.5));
     let h2 = ChiSquare::new(2)
         .unwrap()
         .quantile_upper(1.0 / 200.0)
         .unwrap();
-    let (t, _) = simulate::<2>(&mut rng, runs, 20_000, shift, |w: Option<&[f64; 2]>| {
+    let (t, t_se) = simulate::<2>(&mut rng, runs, 20_000, shift, |w: Option<&[f64; 2]>| {
         w.is_some_and(|w| w[0] * w[0] + w[1] * w[1] > h2)
     });
-    println!("\nARL after a mean shift of noncentrality 1 (p = 2, all charts at ARL0 200):");
-    println!("  MEWMA 0.1 / 8.64: {m:.1}   MCUSUM 0.5 / 5.5: {c:.1}   T^2 individuals: {t:.1}");
+    // T^2 for individuals: run lengths are geometric, ARL = 1 / P(noncentral chi-square with
+    // 2 degrees of freedom and noncentrality 1 > h), exact.
+    let t_exact = 1.0 / (1.0 - arl::ncx2_cdf(h2, 2, 1.0));
+    // MEWMA and MCUSUM: independent code, 20x the runs (standard error about 0.2 %).
+    let mut rng_ref = Rng::new(502);
+    let (m_ref, m_ref_se) = reference_arl(&mut rng_ref, 20 * runs, shift, Some((0.1, 8.64)), None);
+    let (c_ref, c_ref_se) = reference_arl(&mut rng_ref, 20 * runs, shift, None, Some((0.5, 5.5)));
+    println!(
+        "\nARL after a mean shift of noncentrality 1 (p = 2, all charts at ARL0 200), {runs} runs:"
+    );
+    println!(
+        "  MEWMA 0.1 / 8.64:  {m:.2} +- {m_se:.2}   independent code {m_ref:.2} +- {m_ref_se:.2}"
+    );
+    println!(
+        "  MCUSUM 0.5 / 5.5:  {c:.2} +- {c_se:.2}   independent code {c_ref:.2} +- {c_ref_se:.2}"
+    );
+    println!("  T^2 individuals:   {t:.2} +- {t_se:.2}   exact {t_exact:.2}");
+    // Each within 4 combined standard errors of its reference: at these run counts that is
+    // 1.5 % for the MEWMA and MCUSUM and 2.8 % for T^2, the smallest error each check detects.
+    for (name, got, se, want, want_se) in [
+        ("MEWMA", m, m_se, m_ref, m_ref_se),
+        ("MCUSUM", c, c_se, c_ref, c_ref_se),
+        ("T^2", t, t_se, t_exact, 0.0),
+    ] {
+        let band = 4.0 * se.hypot(want_se);
+        assert!(
+            (got - want).abs() <= band,
+            "{name}: {got} vs {want} +- {band}"
+        );
+        assert!(
+            band <= 0.03 * want,
+            "{name}: band {band} too wide to detect 3 %"
+        );
+    }
     // The drift charts must beat the individuals chart by far on a small sustained shift
     // (common practice: about 10 against about 40 samples).
     assert!(m < 0.5 * t && c < 0.5 * t, "{m} {c} {t}");

@@ -18,7 +18,7 @@ use crate::Baseline;
 /// at `m` (degenerate spread, say), the learner keeps collecting and tries again at each new
 /// sample, still answering `NotReady`, and [`last_error`](Self::last_error) says why. A
 /// refused sample (NaN) gets `NoGo(InvalidSample)` and changes nothing.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug)]
 #[cfg_attr(feature = "defmt", derive(defmt::Format))]
 pub struct Learner<T, const N: usize, const L: usize> {
     moments: Pivoted<Moments<T, N, L>, T, N>,
@@ -27,6 +27,17 @@ pub struct Learner<T, const N: usize, const L: usize> {
     resolution: [T; N],
     gate: Option<Gate<T, N>>,
     last_error: Option<FreezeError>,
+}
+
+impl<T: Real, const N: usize, const L: usize> PartialEq for Learner<T, N, L> {
+    fn eq(&self, other: &Self) -> bool {
+        self.moments == other.moments
+            && self.target == other.target
+            && self.alpha == other.alpha
+            && self.resolution == other.resolution
+            && self.gate == other.gate
+            && self.last_error == other.last_error
+    }
 }
 
 impl<T: Real + Source<T>, const N: usize, const L: usize> Learner<T, N, L> {

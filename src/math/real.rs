@@ -37,6 +37,9 @@ pub trait Real:
     /// types on an Arm core without FPU, and for `f64` on an Arm core with a single-precision
     /// FPU). Hot paths pick between float and bit-level tests with it.
     const NATIVE: bool;
+    /// One more than the largest binary exponent of a finite value (128 for `f32`, 1024 for
+    /// `f64`): every finite value is below `2^MAX_EXP`.
+    const MAX_EXP: i32;
 
     /// Nearest value of this type to `x` (round to nearest even; `f64` is the identity).
     fn from_f64(x: f64) -> Self;
@@ -48,6 +51,9 @@ pub trait Real:
     fn is_finite(self) -> bool;
     /// `true` for NaN.
     fn is_nan(self) -> bool;
+    /// `true` when `|self| < 2^k` (false for NaN and infinities), for `0 < k <= MAX_EXP`. A
+    /// test of the exponent bits: as cheap without an FPU as with one.
+    fn below_pow2(self, k: i32) -> bool;
     /// Absolute value.
     fn abs(self) -> Self;
     /// Square root (`libm`); NaN for negative input.
@@ -81,7 +87,7 @@ pub trait Real:
 }
 
 macro_rules! impl_real {
-    ($t:ty, $native:expr, $sqrt:path, $atan2:path, $hypot:path, $fmax:path, $fmin:path, $fabs:path,
+    ($t:ty, $bits:ty, $native:expr, $sqrt:path, $atan2:path, $hypot:path, $fmax:path, $fmin:path, $fabs:path,
      $exp:path, $ln:path, $ln1p:path, $erfc:path, $lgamma:path, $floor:path,
      $sin:path, $cos:path, $asin:path) => {
         impl Real for $t {
@@ -89,6 +95,7 @@ macro_rules! impl_real {
             const ONE: Self = 1.0;
             const EPSILON: Self = <$t>::EPSILON;
             const NATIVE: bool = $native;
+            const MAX_EXP: i32 = <$t>::MAX_EXP;
 
             #[inline]
             fn from_f64(x: f64) -> Self {
@@ -109,6 +116,16 @@ macro_rules! impl_real {
             #[inline]
             fn is_nan(self) -> bool {
                 <$t>::is_nan(self)
+            }
+            #[inline]
+            fn below_pow2(self, k: i32) -> bool {
+                // Sign bit cleared, the bits of a non-negative float order like the values,
+                // with infinity and NaN above every finite value; 2^k has the biased exponent
+                // MAX_EXP - 1 + k and a zero fraction.
+                let magnitude = self.to_bits() << 1 >> 1;
+                let biased = (<$t>::MAX_EXP - 1 + k) as u32;
+                let fraction_bits = <$t>::MANTISSA_DIGITS - 1;
+                magnitude < <$bits>::from(biased) << fraction_bits
             }
             #[inline]
             fn abs(self) -> Self {
@@ -176,6 +193,7 @@ macro_rules! impl_real {
 
 impl_real!(
     f32,
+    u32,
     !cfg!(all(target_arch = "arm", not(target_abi = "eabihf"))),
     libm::sqrtf,
     libm::atan2f,
@@ -195,6 +213,7 @@ impl_real!(
 );
 impl_real!(
     f64,
+    u64,
     !cfg!(target_arch = "arm"),
     libm::sqrt,
     libm::atan2,

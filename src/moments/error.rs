@@ -22,6 +22,9 @@ pub enum EstimateError {
     TooFewSamples,
     /// A variance is zero (or not positive), so a ratio such as a correlation is undefined.
     Degenerate,
+    /// A figure of the summary would leave the float range. The float accumulators refuse
+    /// the samples, merges and shifts that would lead here, so it is not reached through them.
+    OutOfRange,
 }
 
 /// The forgetting factor of an exponentially weighted accumulator was outside (0, 1].
@@ -44,6 +47,7 @@ impl fmt::Display for EstimateError {
         f.write_str(match self {
             EstimateError::TooFewSamples => "too few samples",
             EstimateError::Degenerate => "a variance is zero",
+            EstimateError::OutOfRange => "a figure would leave the float range",
         })
     }
 }

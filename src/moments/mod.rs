@@ -2,14 +2,14 @@
 //!
 //! | type | sample | state for N = 2 | use |
 //! |---|---|---|---|
-//! | [`Moments`] | `[f32; N]` or `[f64; N]` | 24 bytes (f32), 48 (f64) | float Welford update, one pass, mergeable |
+//! | [`Moments`] | `[f32; N]` or `[f64; N]` | 48 bytes (f32), 88 (f64) | float Welford update in blocks of 2^16 samples, one pass, mergeable, right to the end of its `u32` count |
 //! | [`WeightedMoments`] | float plus a weight | 24 (f32), 48 (f64) | West's weighted update (frequency weights) |
 //! | [`ExactMoments`] | `[i32; N]` | 48 bytes | ADC counts, encoder ticks, micrometres: exact integer sums until a detected overflow |
 //! | [`EwMoments`] | float | 28 (f32), 56 (f64) | exponentially weighted, forgets old samples |
 //! | [`Pivoted`] | the accumulator's or a wider type | the accumulator + the pivot | subtracts a pivot (first sample, nominal, ADC offset) before the cast |
 //!
 //! Cost of the N-D forms, in bytes, with `L = N (N + 1) / 2` upper-triangle entries:
-//! `Moments<f32>` is `4 + 4 N + 4 L` (N = 6: 112), `Moments<f64>` is `8 + 8 N + 8 L` (N = 6: 224),
+//! `Moments<f32>` is `8 + 8 N + 8 L` (N = 6: 224), `Moments<f64>` is `8 + 16 N + 16 L` (N = 6: 440),
 //! `ExactMoments` is `8 + 8 N + 8 L` (N = 6: 224), `EwMoments<f32>` is `8 + 4 N + 4 L`.
 //! `footprint` in the host tests prints the measured `size_of` of each.
 //!
@@ -116,7 +116,7 @@ macro_rules! aliases {
 aliases! {
     /// 1-D float Welford accumulator.
     Moments1 = Moments<T, 1, 1>;
-    /// 2-D float Welford accumulator (24 bytes in `f32`).
+    /// 2-D float Welford accumulator (48 bytes in `f32`).
     Moments2 = Moments<T, 2, 3>;
     /// 3-D float Welford accumulator.
     Moments3 = Moments<T, 3, 6>;

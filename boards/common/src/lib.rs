@@ -375,6 +375,23 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
         let _ = black_box(&mut m).push(black_box([i as f32 * 0.25, 1.0]));
     });
     let _ = writeln!(out, "count moments-f32-update {}", per_call(t, reps));
+    // The worst single push: the one that fills the recent block (2^16 samples) and merges it
+    // into a non-empty past (the second fold). Each call pushes into a copy of an accumulator
+    // one sample short of that fold, so the count includes copying the 48-byte state.
+    let mut full = Moments2::<f32>::new();
+    for i in 0..131_071u32 {
+        let _ = full.push([(i & 1023) as f32 * 0.25, 1.0]);
+    }
+    let t = measure(clk, reps, |i| {
+        let mut c = black_box(full);
+        let _ = c.push(black_box([i as f32 * 0.25, 1.0]));
+        black_box(c);
+    });
+    let _ = writeln!(
+        out,
+        "count moments-f32-update-folding {}",
+        per_call(t, reps)
+    );
     let mut pu = peer::Update::default();
     let t = measure(clk, reps, |i| {
         black_box(&mut pu).push(black_box([i as f32 * 0.25, 1.0]));
