@@ -14,6 +14,7 @@ pub mod demo;
 pub mod figure;
 pub mod fixture;
 pub mod flash;
+pub mod fleet_frames;
 pub mod process;
 pub mod quadrature;
 pub mod reference;

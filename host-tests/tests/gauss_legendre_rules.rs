@@ -4,6 +4,9 @@
 
 use covgate::math::gauss_legendre::{GL10, GL12, GL20, GL5, GL5_CENTRE, GL6};
 
+/// Order, positive half of the rule, centre weight (0 for even orders).
+type Rule = (u32, &'static [(f64, f64)], f64);
+
 /// `P_n(x)` and `P_n'(x)` by the three-term recurrence.
 fn legendre(n: u32, x: f64) -> (f64, f64) {
     let (mut p0, mut p1) = (1.0, x);
@@ -22,7 +25,7 @@ fn legendre(n: u32, x: f64) -> (f64, f64) {
 /// rule integrates `x^k` over [-1, 1] exactly for every `k < 2n` (to 1e-15).
 #[test]
 fn gauss_legendre_rules() {
-    let rules: [(u32, &[(f64, f64)], f64); 5] = [
+    let rules: [Rule; 5] = [
         (5, &GL5, GL5_CENTRE),
         (6, &GL6, 0.0),
         (10, &GL10, 0.0),
