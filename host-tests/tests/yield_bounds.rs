@@ -39,12 +39,14 @@ fn zones() -> [(&'static str, Zone<f64>); 6] {
             "one-y",
             Zone::Rect(RectZone::new([-inf, -inf], [inf, 9.0]).unwrap()),
         ),
-        // A closed zone whose edge passes 2 sd from the mean on one side only (diameter 128 um,
-        // centre 48 um off in +x; the other edges are 5 sd or more away): close to one-sided,
-        // so its coverage should be close to nominal.
+        // A large closed zone whose edge passes 2 sd from the mean (diameter 1000 um, centre
+        // 484 um off in +x): near the process its edge is almost straight, so it should cover
+        // like a one-sided limit, through the circle's own quadrature. (A 128 um circle with
+        // the same near edge covered 0.961 at m = 200: its curving edge adds a second, lateral
+        // exit that the bound treats conservatively.)
         (
             "circle-edge",
-            Zone::Circle(CircleZone::new([52.0, -3.0], 128.0).unwrap()),
+            Zone::Circle(CircleZone::new([488.0, -3.0], 1000.0).unwrap()),
         ),
     ]
 }
