@@ -30,8 +30,9 @@ pub use report::{ReportFrame, ReportFrame2};
 pub use snapshot::{SlotStore, SnapshotError};
 pub use watch::{Alarm, Monitor, Screening, Step, Watch, WatchConfig, WatchError};
 pub use zone::{
-    coverage_radius, BoundError, Bounds, Capability, CircleZone, EllipseZone, IntCircle,
-    IntEllipse, IntRect, IntZone, RectZone, Uncertainty, Yield, YieldBound, Zone, ZoneError,
+    coverage_radius, BallZone, BoundError, Bounds, BoxZone, Capability, CircleZone, EllipseZone,
+    EllipsoidZone, Estimate, IntCircle, IntEllipse, IntRect, IntZone, RectZone, Uncertainty, Yield,
+    YieldBound, Zone, ZoneError,
 };
 
 // The state budgets promised in the docs, checked at build time on every target.

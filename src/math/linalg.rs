@@ -106,17 +106,49 @@ pub fn cholesky<T: Real, const N: usize>(a: &[[T; N]; N]) -> Option<([[T; N]; N]
     Some((l, inv))
 }
 
-/// Eigenvalues of a symmetric matrix, in ascending order.
+/// Eigenvalues (ascending) and unit eigenvectors of a symmetric matrix: `a = V diag(l) V'`,
+/// with eigenvector `k` in column `k` of `V` (`v[i][k]`).
 ///
-/// Method: the cyclic Jacobi method (Golub & Van Loan, 4th ed., section 8.5.3; rotation angle
-/// as in Rutishauser 1966), sweeping until every off-diagonal entry is below `EPSILON` times
-/// the diagonal scale, at most 30 sweeps (N <= 6 needs under 10). Absolute error about
-/// `N EPSILON max|lambda|`. NaN input gives NaN eigenvalues.
-pub fn symmetric_eigenvalues<T: Real, const N: usize>(a: &[[T; N]; N]) -> [T; N] {
+/// Method: the cyclic Jacobi method as in [`symmetric_eigenvalues`], accumulating the
+/// rotations (Golub & Van Loan, 4th ed., algorithm 8.5.3). The eigenvectors are orthonormal to
+/// about `N EPSILON`. NaN input gives NaN throughout.
+pub fn symmetric_eigen<T: Real, const N: usize>(a: &[[T; N]; N]) -> ([T; N], [[T; N]; N]) {
+    let nan = T::from_f64(f64::NAN);
     if a.iter().flatten().any(|v| v.is_nan()) {
-        return [T::from_f64(f64::NAN); N];
+        return ([nan; N], [[nan; N]; N]);
     }
     let mut m = *a;
+    let mut v = [[T::ZERO; N]; N];
+    for i in 0..N {
+        v[i][i] = T::ONE;
+    }
+    jacobi_sweeps(&mut m, Some(&mut v));
+    let mut order = [0usize; N];
+    for (i, o) in order.iter_mut().enumerate() {
+        *o = i;
+    }
+    // Insertion sort of the indices by eigenvalue: N <= 6.
+    for i in 1..N {
+        let mut j = i;
+        while j > 0 && m[order[j - 1]][order[j - 1]] > m[order[j]][order[j]] {
+            order.swap(j - 1, j);
+            j -= 1;
+        }
+    }
+    let mut values = [T::ZERO; N];
+    let mut vectors = [[T::ZERO; N]; N];
+    for (k, &o) in order.iter().enumerate() {
+        values[k] = m[o][o];
+        for i in 0..N {
+            vectors[i][k] = v[i][o];
+        }
+    }
+    (values, vectors)
+}
+
+/// Cyclic Jacobi sweeps on `m` until every off-diagonal entry is below `EPSILON` times the
+/// diagonal scale (at most 30 sweeps), applying each rotation to the columns of `v` too.
+fn jacobi_sweeps<T: Real, const N: usize>(m: &mut [[T; N]; N], mut v: Option<&mut [[T; N]; N]>) {
     let half = T::from_f64(0.5);
     for _ in 0..30 {
         let mut off = T::ZERO;
@@ -152,9 +184,30 @@ pub fn symmetric_eigenvalues<T: Real, const N: usize>(a: &[[T; N]; N]) -> [T; N]
                     m[p][k] = c * mpk - s * mqk;
                     m[q][k] = s * mpk + c * mqk;
                 }
+                if let Some(v) = v.as_deref_mut() {
+                    for k in 0..N {
+                        let (vkp, vkq) = (v[k][p], v[k][q]);
+                        v[k][p] = c * vkp - s * vkq;
+                        v[k][q] = s * vkp + c * vkq;
+                    }
+                }
             }
         }
     }
+}
+
+/// Eigenvalues of a symmetric matrix, in ascending order.
+///
+/// Method: the cyclic Jacobi method (Golub & Van Loan, 4th ed., section 8.5.3; rotation angle
+/// as in Rutishauser 1966), sweeping until every off-diagonal entry is below `EPSILON` times
+/// the diagonal scale, at most 30 sweeps (N <= 6 needs under 10). Absolute error about
+/// `N EPSILON max|lambda|`. NaN input gives NaN eigenvalues.
+pub fn symmetric_eigenvalues<T: Real, const N: usize>(a: &[[T; N]; N]) -> [T; N] {
+    if a.iter().flatten().any(|v| v.is_nan()) {
+        return [T::from_f64(f64::NAN); N];
+    }
+    let mut m = *a;
+    jacobi_sweeps(&mut m, None);
     let mut ev = [T::ZERO; N];
     for i in 0..N {
         ev[i] = m[i][i];
@@ -172,7 +225,28 @@ pub fn symmetric_eigenvalues<T: Real, const N: usize>(a: &[[T; N]; N]) -> [T; N]
 
 #[cfg(test)]
 mod tests {
-    use super::{cholesky, det2, det_symmetric_psd, symmetric_eigenvalues};
+    use super::{cholesky, det2, det_symmetric_psd, symmetric_eigen, symmetric_eigenvalues};
+
+    #[test]
+    fn eigenvectors_rebuild_the_matrix() {
+        let a = [
+            [4.0, 1.0, -2.0, 0.5],
+            [1.0, 3.0, 0.25, 0.0],
+            [-2.0, 0.25, 5.0, 1.5],
+            [0.5, 0.0, 1.5, 2.0],
+        ];
+        let (l, v) = symmetric_eigen(&a);
+        assert_eq!(l, symmetric_eigenvalues(&a));
+        for i in 0..4 {
+            for j in 0..4 {
+                let rebuilt: f64 = (0..4).map(|k| v[i][k] * l[k] * v[j][k]).sum();
+                assert!((rebuilt - a[i][j]).abs() < 1e-14, "{i} {j}");
+                let dot: f64 = (0..4).map(|k| v[k][i] * v[k][j]).sum();
+                let want = if i == j { 1.0 } else { 0.0 };
+                assert!((dot - want).abs() < 1e-14, "orthonormal {i} {j}");
+            }
+        }
+    }
 
     #[test]
     fn det2_survives_cancellation() {

@@ -22,7 +22,7 @@ pub use bvn::{bvn_upper_f32, bvn_upper_f64};
 pub use chi2::ChiSquare;
 pub use chi2_table::{Chi2Table, CHI2_LIMITS};
 pub use error::LimitError;
-pub use linalg::{cholesky, det2, det_symmetric_psd, symmetric_eigenvalues};
+pub use linalg::{cholesky, det2, det_symmetric_psd, symmetric_eigen, symmetric_eigenvalues};
 pub use normal::{norm_cdf, norm_pdf, norm_quantile_upper, norm_sf};
 pub use precision::Precision;
 pub use real::Real;

@@ -18,13 +18,18 @@
 //!
 //! A limit value lying exactly on the boundary conforms (common practice: a dimension at its
 //! limit is in tolerance).
+//!
+//! In N dimensions (`N = 1..=6`): [`BoxZone`], [`BallZone`] and [`EllipsoidZone`], with the
+//! ball and ellipsoid probabilities returned as an [`Estimate`] with an error bound.
 
 mod confidence;
 mod integer;
+mod nd;
 mod probability;
 
 pub use confidence::{BoundError, Uncertainty, YieldBound};
 pub use integer::{IntCircle, IntEllipse, IntRect, IntZone};
+pub use nd::{BallZone, BoxZone, EllipsoidZone, Estimate};
 pub use probability::coverage_radius;
 
 use core::fmt;
@@ -48,6 +53,8 @@ pub enum ZoneError {
     BadCoverage,
     /// The distribution's mean is not finite, or its covariance is not positive definite.
     BadDistribution,
+    /// The caller's scratch buffer is too short for one term of a series (needs 2 slots).
+    NoScratch,
 }
 
 impl fmt::Display for ZoneError {
@@ -58,6 +65,7 @@ impl fmt::Display for ZoneError {
             ZoneError::NotIntegral => "zone does not fit the integer form exactly",
             ZoneError::BadCoverage => "coverage must lie strictly between 0 and 1",
             ZoneError::BadDistribution => "mean not finite or covariance not positive definite",
+            ZoneError::NoScratch => "scratch buffer too short",
         })
     }
 }

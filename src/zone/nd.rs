@@ -1,0 +1,447 @@
+//! Zones in N dimensions (`N = 1..=6`): boxes, balls and ellipsoids, with exact point tests,
+//! and the probability of a ball or an ellipsoid under a normal distribution with an error
+//! bound returned beside it.
+//!
+//! | zone | conforms when |
+//! |---|---|
+//! | [`BoxZone`] | `lo_i <= x_i <= hi_i` on every axis, either limit may be absent (one-sided) |
+//! | [`BallZone`] | `2 |x - c| <= diameter` (spherical positional tolerance, common practice) |
+//! | [`EllipsoidZone`] | `(x - c)' Q^-1 (x - c) <= 1` for a positive-definite shape matrix `Q` |
+//!
+//! A value exactly on the boundary conforms; NaN never does.
+
+use super::ZoneError;
+use crate::math::{cholesky, symmetric_eigen, ChiSquare, Real};
+use crate::moments::{pairs, unpack, Shape};
+use crate::Covariance;
+
+/// An axis-aligned box in `N` dimensions; an absent limit is `-inf` (lower) or `+inf` (upper).
+/// In 2-D it is the [`RectZone`](super::RectZone).
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct BoxZone<T, const N: usize> {
+    lo: [T; N],
+    hi: [T; N],
+}
+
+impl<T: Real, const N: usize> BoxZone<T, N> {
+    /// Errors: [`ZoneError::NotFinite`] for a NaN limit, [`ZoneError::Degenerate`] when some
+    /// `lo_i` is not below `hi_i` (or the box is empty: a lower limit of `+inf`, an upper of
+    /// `-inf`).
+    pub fn new(lo: [T; N], hi: [T; N]) -> Result<Self, ZoneError> {
+        if lo.iter().chain(hi.iter()).any(|v| v.is_nan()) {
+            return Err(ZoneError::NotFinite);
+        }
+        let inf = T::from_f64(f64::INFINITY);
+        let ok = lo
+            .iter()
+            .zip(hi.iter())
+            .all(|(&l, &h)| l < h && l < inf && h > -inf);
+        if !ok || N == 0 {
+            return Err(ZoneError::Degenerate);
+        }
+        Ok(BoxZone { lo, hi })
+    }
+
+    /// Lower limits (`-inf` where absent).
+    pub fn lo(&self) -> [T; N] {
+        self.lo
+    }
+
+    /// Upper limits (`+inf` where absent).
+    pub fn hi(&self) -> [T; N] {
+        self.hi
+    }
+
+    /// Point test; NaN is outside.
+    #[inline]
+    pub fn contains(&self, x: &[T; N]) -> bool {
+        (0..N).all(|i| x[i] >= self.lo[i] && x[i] <= self.hi[i])
+    }
+}
+
+/// A ball of the given diameter around a centre: the spherical positional tolerance zone. In
+/// 2-D it is the [`CircleZone`](super::CircleZone).
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct BallZone<T, const N: usize> {
+    centre: [T; N],
+    diameter: T,
+}
+
+impl<T: Real, const N: usize> BallZone<T, N> {
+    /// Errors: [`ZoneError::NotFinite`], [`ZoneError::Degenerate`] for a diameter not above 0.
+    pub fn new(centre: [T; N], diameter: T) -> Result<Self, ZoneError> {
+        if !(centre.iter().all(|v| v.is_finite()) && diameter.is_finite()) {
+            return Err(ZoneError::NotFinite);
+        }
+        if !(diameter > T::ZERO) || N == 0 {
+            return Err(ZoneError::Degenerate);
+        }
+        Ok(BallZone { centre, diameter })
+    }
+
+    /// The centre (true position).
+    pub fn centre(&self) -> [T; N] {
+        self.centre
+    }
+
+    /// The tolerance diameter.
+    pub fn diameter(&self) -> T {
+        self.diameter
+    }
+
+    /// `4 |x - c|^2 <= diameter^2`, no square root (the 2-D form is the circle's, to the bit).
+    /// NaN is outside.
+    #[inline]
+    pub fn contains(&self, x: &[T; N]) -> bool {
+        let mut s = T::ZERO;
+        for i in 0..N {
+            let d = x[i] - self.centre[i];
+            s += d * d;
+        }
+        T::from_f64(4.0) * s <= self.diameter * self.diameter
+    }
+
+    /// The probability that a sample from `N(mean, cov)` lands inside and outside, with an
+    /// error bound; see [`EllipsoidZone::probability`] (a ball of radius `r` is the ellipsoid
+    /// `Q = r^2 I`).
+    pub fn probability(
+        &self,
+        mean: &[T; N],
+        cov: &Covariance<T, N>,
+        scratch: &mut [T],
+    ) -> Result<Estimate<T>, ZoneError> {
+        let (l, _) = factor(mean, cov)?;
+        let r = self.diameter * T::from_f64(0.5);
+        let mut m = [[T::ZERO; N]; N];
+        let mut n = [T::ZERO; N];
+        for i in 0..N {
+            for j in 0..=i {
+                m[i][j] = l[i][j] / r;
+            }
+            n[i] = (mean[i] - self.centre[i]) / r;
+        }
+        quadratic_form(&m, &n, scratch)
+    }
+}
+
+/// An ellipsoid `(x - c)' Q^-1 (x - c) <= 1` with a positive-definite shape matrix `Q`, given
+/// by its upper triangle row by row (`L = N (N + 1) / 2` values). A ball of radius `r` is
+/// `Q = r^2 I`; the semi-axes are the square roots of `Q`'s eigenvalues.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct EllipsoidZone<T, const N: usize, const L: usize> {
+    centre: [T; N],
+    shape: [T; L],
+    /// Cholesky factor of `Q` (lower) and the reciprocals of its diagonal.
+    factor: [[T; N]; N],
+    inv_diag: [T; N],
+}
+
+impl<T: Real, const N: usize, const L: usize> EllipsoidZone<T, N, L> {
+    /// Errors: [`ZoneError::NotFinite`] for a non-finite value, [`ZoneError::Degenerate`]
+    /// unless `Q` is positive definite (to working precision).
+    pub fn new(centre: [T; N], shape: [T; L]) -> Result<Self, ZoneError> {
+        let () = Shape::<N, L>::CHECK;
+        if !centre.iter().chain(shape.iter()).all(|v| v.is_finite()) {
+            return Err(ZoneError::NotFinite);
+        }
+        let q: [[T; N]; N] = unpack(&shape);
+        let (factor, inv_diag) = cholesky(&q).ok_or(ZoneError::Degenerate)?;
+        Ok(EllipsoidZone {
+            centre,
+            shape,
+            factor,
+            inv_diag,
+        })
+    }
+
+    /// The centre.
+    pub fn centre(&self) -> [T; N] {
+        self.centre
+    }
+
+    /// The shape matrix `Q`, upper triangle row by row.
+    pub fn shape(&self) -> [T; L] {
+        self.shape
+    }
+
+    /// `y = F^-1 (x - c)` for the Cholesky factor `F` of `Q`: the ellipsoid is `|y| <= 1`.
+    fn unit_coords(&self, x: &[T; N]) -> [T; N] {
+        let mut y = [T::ZERO; N];
+        for i in 0..N {
+            let mut s = x[i] - self.centre[i];
+            for k in 0..i {
+                s -= self.factor[i][k] * y[k];
+            }
+            y[i] = s * self.inv_diag[i];
+        }
+        y
+    }
+
+    /// `(x - c)' Q^-1 (x - c) <= 1`, by forward substitution (no inverse). NaN is outside.
+    #[inline]
+    pub fn contains(&self, x: &[T; N]) -> bool {
+        let y = self.unit_coords(x);
+        y.iter().fold(T::ZERO, |s, &v| s + v * v) <= T::ONE
+    }
+
+    /// The probability that a sample from `N(mean, cov)` lands inside and outside.
+    ///
+    /// Method: with `cov = L L'`, the zone's test statistic `(x - c)' Q^-1 (x - c)` is the
+    /// quadratic form `sum_j lambda_j (w_j + b_j)^2` in independent standard normals, with
+    /// `lambda_j` the eigenvalues of `F^-1 L (F^-1 L)'` and `b_j` the offset in their
+    /// eigenvectors (Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions 2,
+    /// ch. 29). Its distribution is Ruben's (1962) series of chi-square distributions,
+    /// `P(form <= 1) = sum_k a_k P(chi^2_{N+2k} <= 1 / beta)` with `beta` the smallest
+    /// eigenvalue, where every `a_k >= 0` and `sum a_k = 1`. Inside and outside are both sums
+    /// of positive terms (the outside from the chi-square upper tails, never `1 - inside`),
+    /// so each keeps its relative accuracy in the tail.
+    ///
+    /// The series is cut when its remaining weight `1 - sum a_k` is below a few `EPSILON`, or
+    /// when `scratch` is full: two slots per term (the coefficients are kept for a second
+    /// pass). The weight left out lies on terms whose chi-square upper tails are at least the
+    /// last one's, which splits it into a part certainly outside (added to `outside`) and a
+    /// part that may fall either way: both probabilities are reported at the middle of that
+    /// part, and [`Estimate::error`] is half of it plus a rounding allowance, so that
+    /// `|true - reported| <= error` for each. Terms needed grow with the
+    /// spread of the eigenvalues and with the offset: a sphere centred on an isotropic process
+    /// needs one; eigenvalues 10x apart about 300 for `f64` precision; 100x apart about 3000.
+    ///
+    /// Errors: [`ZoneError::BadDistribution`] unless `mean` is finite and `cov` positive
+    /// definite; [`ZoneError::NoScratch`] for a `scratch` shorter than 2.
+    pub fn probability(
+        &self,
+        mean: &[T; N],
+        cov: &Covariance<T, N>,
+        scratch: &mut [T],
+    ) -> Result<Estimate<T>, ZoneError> {
+        let (l, _) = factor(mean, cov)?;
+        // M = F^-1 L (lower triangular), n = F^-1 (mean - c).
+        let mut m = [[T::ZERO; N]; N];
+        for j in 0..N {
+            for i in j..N {
+                let mut s = l[i][j];
+                for k in j..i {
+                    s -= self.factor[i][k] * m[k][j];
+                }
+                m[i][j] = s * self.inv_diag[i];
+            }
+        }
+        let n = self.unit_coords(mean);
+        quadratic_form(&m, &n, scratch)
+    }
+}
+
+/// Probabilities inside and outside a zone with a bound on what the method left out.
+#[derive(Clone, Copy, Debug, PartialEq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct Estimate<T> {
+    /// Probability of conforming; the true value is within `error`.
+    pub inside: T,
+    /// Nonconforming fraction, from the tails (not `1 - inside`); the true value is within
+    /// `error`.
+    pub outside: T,
+    /// Bound on `|true - reported|` for both: half the weight the series did not reach that
+    /// may fall either way, plus rounding.
+    pub error: T,
+    /// Terms of the series used.
+    pub terms: u32,
+}
+
+/// Cholesky factor of a valid distribution's covariance.
+fn factor<T: Real, const N: usize>(
+    mean: &[T; N],
+    cov: &Covariance<T, N>,
+) -> Result<([[T; N]; N], [T; N]), ZoneError> {
+    if !mean.iter().all(|v| v.is_finite()) {
+        return Err(ZoneError::BadDistribution);
+    }
+    cholesky(cov.matrix()).ok_or(ZoneError::BadDistribution)
+}
+
+/// `P(|M w + n|^2 <= 1)` and `P(> 1)` for `w ~ N(0, I)` and lower-triangular `M`, by Ruben's
+/// series (see [`EllipsoidZone::probability`]).
+fn quadratic_form<T: Real, const N: usize>(
+    m: &[[T; N]; N],
+    n: &[T; N],
+    scratch: &mut [T],
+) -> Result<Estimate<T>, ZoneError> {
+    // B = M M' = U diag(lambda) U'; M w ~ U diag(sqrt(lambda)) v, so the form is
+    // sum lambda_j (v_j + (U'n)_j / sqrt(lambda_j))^2.
+    let mut b = [[T::ZERO; N]; N];
+    for (i, j) in pairs::<N>() {
+        let mut s = T::ZERO;
+        for k in 0..=i.min(j) {
+            s += m[i][k] * m[j][k];
+        }
+        b[i][j] = s;
+        b[j][i] = s;
+    }
+    let (lambda, u) = symmetric_eigen(&b);
+    let beta = lambda[0];
+    if !(beta > T::ZERO && lambda[N - 1].is_finite()) {
+        return Err(ZoneError::BadDistribution);
+    }
+    let half = T::from_f64(0.5);
+    // gamma_j = 1 - beta / lambda_j in [0, 1); delta_j = (U'n)_j^2 / lambda_j; the series
+    // starts at ln a_0 = -sum delta_j / 2 + sum ln(beta / lambda_j) / 2.
+    let mut gamma = [T::ZERO; N];
+    let mut delta = [T::ZERO; N];
+    let mut ln_a0 = T::ZERO;
+    for j in 0..N {
+        let mut p = T::ZERO;
+        for i in 0..N {
+            p += u[i][j] * n[i];
+        }
+        let ratio = beta / lambda[j];
+        gamma[j] = (T::ONE - ratio).max(T::ZERO);
+        delta[j] = p * p / lambda[j];
+        ln_a0 += half * (ratio.ln() - delta[j]);
+    }
+    // First pass: a~_k = a_k / (a_0 e^shift) by a~_k = (1/k) sum_{m=1..k} g_m a~_{k-m} with
+    // g_m = sum_j (gamma_j^m + m delta_j (1 - gamma_j) gamma_j^(m-1)) / 2 >= 0 (Ruben 1962;
+    // the recursion is that of the series' generating function, all terms positive). The
+    // front half of `scratch` holds g, the back half a~.
+    let cap = scratch.len() / 2;
+    if cap == 0 {
+        return Err(ZoneError::NoScratch);
+    }
+    let (gs, coef) = scratch.split_at_mut(cap);
+    let big = T::from_f64(1.152_921_504_606_847e18); // 2^60
+    let ln_big = T::from_f64(60.0 * core::f64::consts::LN_2);
+    let tol = T::EPSILON * T::from_f64(2.0);
+    let mut power = [T::ONE; N]; // gamma_j^(m-1)
+    let mut shift = T::ZERO;
+    let mut scale = ln_a0.exp();
+    coef[0] = T::ONE;
+    let mut sum = T::ONE;
+    let mut terms = 1usize;
+    // Stop when the weight left is within the rounding of the sum itself.
+    while terms < cap && !(T::ONE - scale * sum <= tol * T::from_u32(terms as u32 + 2)) {
+        let k = terms;
+        let mut gk = T::ZERO;
+        for j in 0..N {
+            gk += power[j] * (gamma[j] + T::from_u32(k as u32) * delta[j] * (T::ONE - gamma[j]));
+            power[j] *= gamma[j];
+        }
+        gs[k] = gk * half;
+        let mut s = T::ZERO;
+        for mm in 1..=k {
+            s += gs[mm] * coef[k - mm];
+        }
+        let a = s / T::from_u32(k as u32);
+        coef[k] = a;
+        sum += a;
+        terms += 1;
+        if a > big {
+            for v in coef[..terms].iter_mut() {
+                *v /= big;
+            }
+            sum /= big;
+            shift += ln_big;
+            scale = (ln_a0 + shift).exp();
+        }
+        if !sum.is_finite() {
+            return Err(ZoneError::BadDistribution);
+        }
+    }
+    let remaining = (T::ONE - scale * sum).max(T::ZERO);
+    // Second pass: chi-square tails with N + 2k degrees of freedom at y = 1 / beta, h = y / 2.
+    // Upper tails upward, Q_{k+1} = Q_k + t_k with t_k = e^-h h^a / Gamma(a + 1), a = N/2 + k
+    // (sums of positive terms). Lower tails: P_k = 1 - Q_k while Q_k <= 1/2, then
+    // P_{k+1} = P_k - t_k (its absolute error stays that of P at the crossing); when already
+    // P_0 < 1/2 (a zone small beside the process), downward from the top term instead, where
+    // every step adds.
+    let y = T::ONE / beta;
+    let h = y * half;
+    let ln_h = h.ln();
+    let a0 = T::from_u32(N as u32) * half;
+    let chi = ChiSquare::new(N as u32).map_err(|_| ZoneError::BadDistribution)?;
+    let ln_term = |a: T| a * ln_h - h - (a + T::ONE).ln_gamma();
+    let mut ln_t = ln_term(a0);
+    let mut t = ln_t.exp();
+    // `ln_t` is current while `logs` holds: below `tiny` the terms step in logarithms, so that
+    // an underflowed start still reaches the later, larger terms; on leaving, the term is
+    // taken afresh from its closed form.
+    let (tiny, mut logs) = (T::from_f64(1e-30), true);
+    let mut q = chi.upper(y);
+    let upward = q <= half;
+    let mut p = T::ONE - q;
+    let (mut outside, mut inside_up) = (T::ZERO, T::ZERO);
+    for k in 0..terms {
+        outside += coef[k] * q;
+        inside_up += coef[k] * p;
+        if k + 1 < terms {
+            q += t;
+            p = if q <= half {
+                T::ONE - q
+            } else {
+                (p - t).max(T::ZERO)
+            };
+            let a_next = a0 + T::from_u32(k as u32 + 1);
+            let next = t * h / a_next;
+            if next > tiny && !logs {
+                t = next;
+            } else {
+                if !logs {
+                    ln_t = t.ln();
+                    logs = true;
+                }
+                ln_t += ln_h - a_next.ln();
+                if ln_t > T::from_f64(-69.0) {
+                    // Back above 1e-30: from the closed form, not the accumulated sum.
+                    ln_t = ln_term(a_next);
+                    logs = false;
+                }
+                t = ln_t.exp();
+            }
+        }
+    }
+    // The weight the cut left out sits on terms k >= K, whose upper tails are at least Q_K:
+    // at least `remaining * Q_K` of it is outside, at most `remaining * (1 - Q_K)` inside.
+    let q_top = q;
+    let inside = if upward {
+        inside_up
+    } else {
+        // P(a, h) at the top: A&S 6.5.29, e^-h h^a / Gamma(a + 1) sum h^n / ((a+1)...(a+n)),
+        // which converges quickly here (h is below the top's a).
+        let a_top = a0 + T::from_u32(terms as u32 - 1);
+        let (mut term, mut series) = (T::ONE, T::ONE);
+        let mut i = T::ONE;
+        for _ in 0..400 {
+            term = term * h / (a_top + i);
+            series += term;
+            if term <= series * T::EPSILON {
+                break;
+            }
+            i += T::ONE;
+        }
+        // r_k = P_k / t_k downward (r_k = 1 + r_{k+1} h / (a_k + 1), every step adds, kept in
+        // the front half of `scratch`), then P_k = r_k t_k with t_k upward from t_0: each P_k
+        // carries the relative error of k products, not that of the top term's logarithm.
+        gs[terms - 1] = series;
+        for k in (0..terms - 1).rev() {
+            let a = a0 + T::from_u32(k as u32);
+            gs[k] = T::ONE + gs[k + 1] * h / (a + T::ONE);
+        }
+        let mut t = ln_term(a0).exp();
+        let mut inside = T::ZERO;
+        for k in 0..terms {
+            inside += coef[k] * gs[k] * t;
+            t = t * h / (a0 + T::from_u32(k as u32) + T::ONE);
+        }
+        inside
+    };
+    // Reported at the middle of what the cut leaves open, with half its width (plus the
+    // rounding of sums of `terms` positive terms) as the error.
+    let open = remaining * (T::ONE - q_top).max(T::ZERO) * half;
+    let rounding = T::EPSILON * T::from_u32(terms as u32 + 16);
+    Ok(Estimate {
+        inside: (inside * scale + open).min(T::ONE),
+        outside: (outside * scale + remaining * q_top + open).min(T::ONE),
+        error: open + rounding,
+        terms: terms as u32,
+    })
+}
