@@ -31,8 +31,8 @@ pub use snapshot::{SlotStore, SnapshotError};
 pub use watch::{Alarm, Monitor, Screening, Step, Watch, WatchConfig, WatchError};
 pub use zone::{
     coverage_radius, BallZone, BoundError, Bounds, BoxZone, Capability, CircleZone, EllipseZone,
-    EllipsoidZone, Estimate, IntCircle, IntEllipse, IntRect, IntZone, RectZone, Uncertainty, Yield,
-    YieldBound, Zone, ZoneError,
+    EllipsoidZone, Estimate, IntBall, IntBox, IntCircle, IntEllipse, IntRect, IntZone, RectZone,
+    Uncertainty, Yield, YieldBound, Zone, ZoneError,
 };
 
 // The state budgets promised in the docs, checked at build time on every target.

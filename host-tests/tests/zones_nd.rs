@@ -383,3 +383,54 @@ fn bad_input_is_a_typed_error() {
         Err(ZoneError::NoScratch)
     );
 }
+
+#[test]
+fn integer_zones_select_exactly_the_integer_points_of_the_float_ones() {
+    use covgate::{IntBall, IntBox, IntCircle};
+    // A 3-D grid around zones with fractional limits and diameters (exact comparisons: the
+    // float tests are exact on these small integers).
+    let fb = BoxZone::new([-3.5, -2.0, f64::NEG_INFINITY], [4.25, 2.999, 1.0]).unwrap();
+    let ib = IntBox::from_zone(&fb);
+    let fball = BallZone::new([1.0, -2.0, 0.0], 7.3).unwrap();
+    let iball = IntBall::from_zone(&fball).unwrap();
+    let mut inside = 0;
+    for x in -8..=8 {
+        for y in -8..=8 {
+            for z in -8..=8 {
+                let (p, q) = ([x, y, z], [f64::from(x), f64::from(y), f64::from(z)]);
+                assert_eq!(ib.contains(&p), fb.contains(&q), "{p:?}");
+                assert_eq!(iball.contains(&p), fball.contains(&q), "{p:?}");
+                inside += usize::from(iball.contains(&p));
+            }
+        }
+    }
+    assert!(inside > 100, "{inside}");
+    // In 2-D the ball is the circle, exactly, also far out (wide arithmetic).
+    check(
+        "int_ball_2d",
+        512,
+        (
+            prop::array::uniform2(-1_000_000i32..1_000_000),
+            prop::array::uniform2(any::<i32>()),
+            1u32..2_000_000,
+        ),
+        |(c, x, d)| {
+            let b = IntBall::new(c, d).unwrap();
+            let circle = IntCircle::new(c, d).unwrap();
+            prop_assert_eq!(b.contains(&x), circle.contains(&x));
+            let near = [
+                c[0].saturating_add(x[0] % 1_000_000),
+                c[1].saturating_add(x[1] % 1_000_000),
+            ];
+            prop_assert_eq!(b.contains(&near), circle.contains(&near));
+            Ok(())
+        },
+    );
+    assert_eq!(IntBall::<3>::new([0; 3], 0), Err(ZoneError::Degenerate));
+    assert_eq!(
+        IntBall::from_zone(&BallZone::new([0.5, 0.0, 0.0], 3.0).unwrap()),
+        Err(ZoneError::NotIntegral)
+    );
+    let far = IntBall::new([0; 6], u32::MAX >> 1).unwrap();
+    assert!(far.contains(&[1 << 29, 1 << 29, 0, 0, 0, 0]) && !far.contains(&[i32::MAX; 6]));
+}

@@ -29,7 +29,7 @@ mod probability;
 
 pub use confidence::{BoundError, Uncertainty, YieldBound};
 pub use integer::{IntCircle, IntEllipse, IntRect, IntZone};
-pub use nd::{BallZone, BoxZone, EllipsoidZone, Estimate};
+pub use nd::{BallZone, BoxZone, EllipsoidZone, Estimate, IntBall, IntBox};
 pub use probability::coverage_radius;
 
 use core::fmt;

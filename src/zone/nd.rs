@@ -445,3 +445,98 @@ fn quadratic_form<T: Real, const N: usize>(
         terms: terms as u32,
     })
 }
+
+/// An integer box for integer samples: `lo_i <= x_i <= hi_i` in `i64`, exact. From a float
+/// box the limits become `ceil(lo)` and `floor(hi)`, which selects exactly the same integers;
+/// an absent limit becomes the `i32` range end.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct IntBox<const N: usize> {
+    lo: [i64; N],
+    hi: [i64; N],
+}
+
+impl<const N: usize> IntBox<N> {
+    /// From a float box in the same units.
+    pub fn from_zone(z: &BoxZone<f64, N>) -> Self {
+        let clamp = |v: f64| v.clamp(f64::from(i32::MIN) - 1.0, f64::from(i32::MAX) + 1.0) as i64;
+        IntBox {
+            lo: z.lo.map(|v| clamp(libm::ceil(v))),
+            hi: z.hi.map(|v| clamp(libm::floor(v))),
+        }
+    }
+
+    /// Point test, integer compares only.
+    #[inline]
+    pub fn contains(&self, x: &[i32; N]) -> bool {
+        (0..N).all(|i| {
+            let v = i64::from(x[i]);
+            v >= self.lo[i] && v <= self.hi[i]
+        })
+    }
+}
+
+/// An integer ball for integer samples: `4 |x - c|^2 <= D2` with `D2 = floor(diameter^2)`
+/// exact, so the test selects exactly the integer points of the float ball. The centre must be
+/// an integer point.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+#[cfg_attr(feature = "defmt", derive(defmt::Format))]
+pub struct IntBall<const N: usize> {
+    centre: [i32; N],
+    /// `floor(D2 / 4)`: for an integer `s`, `4 s <= D2` exactly when `s <= floor(D2 / 4)`.
+    quarter: i64,
+}
+
+impl<const N: usize> IntBall<N> {
+    /// From an integer centre and diameter; [`ZoneError::Degenerate`] for a zero diameter,
+    /// [`ZoneError::NotIntegral`] for one of 2^31 or more.
+    pub fn new(centre: [i32; N], diameter: u32) -> Result<Self, ZoneError> {
+        if diameter == 0 {
+            return Err(ZoneError::Degenerate);
+        }
+        if diameter >= 1 << 31 {
+            return Err(ZoneError::NotIntegral);
+        }
+        let d2 = i64::from(diameter) * i64::from(diameter);
+        Ok(IntBall {
+            centre,
+            quarter: d2 / 4,
+        })
+    }
+
+    /// From a float ball whose centre is an integer point and whose diameter is below 2^26
+    /// (so that `floor(diameter^2)` is exact in `f64`); otherwise [`ZoneError::NotIntegral`].
+    pub fn from_zone(z: &BallZone<f64, N>) -> Result<Self, ZoneError> {
+        let ok = |v: f64| v == libm::round(v) && v.abs() <= f64::from(i32::MAX);
+        let d = z.diameter;
+        if !(z.centre.iter().all(|&v| ok(v)) && d < 67_108_864.0) {
+            return Err(ZoneError::NotIntegral);
+        }
+        // floor of the exact square: d*d = p + e exactly (fma), so floor(d^2) is floor(p) - 1
+        // when p is an integer and e < 0.
+        let p = d * d;
+        let e = libm::fma(d, d, -p);
+        let fl = libm::floor(p);
+        let d2 = if fl == p && e < 0.0 { fl - 1.0 } else { fl } as i64;
+        Ok(IntBall {
+            centre: z.centre.map(|v| v as i32),
+            quarter: d2 / 4,
+        })
+    }
+
+    /// Point test in `i64`, exact. The diameter is below 2^31, so an offset of 2^30 or more
+    /// on any axis is outside; below that, `N <= 6` squares sum to less than 2^63.
+    #[inline]
+    pub fn contains(&self, x: &[i32; N]) -> bool {
+        let reach = 1i64 << 30;
+        let mut s = 0i64;
+        for i in 0..N {
+            let d = i64::from(x[i]) - i64::from(self.centre[i]);
+            if d.abs() >= reach {
+                return false;
+            }
+            s += d * d;
+        }
+        s <= self.quarter
+    }
+}
