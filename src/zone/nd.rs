@@ -304,18 +304,21 @@ fn quadratic_form<T: Real, const N: usize>(
     // g_m = sum_j (gamma_j^m + m delta_j (1 - gamma_j) gamma_j^(m-1)) / 2 >= 0 (Ruben 1962;
     // the recursion is that of the series' generating function, all terms positive). The
     // front half of `scratch` holds g, the back half a~.
+    // Every access below goes through `get`, so no index can panic (checked by the boards'
+    // panic-freedom link); `gs` and `coef` have `cap` slots each.
     let cap = scratch.len() / 2;
-    if cap == 0 {
-        return Err(ZoneError::NoScratch);
-    }
-    let (gs, coef) = scratch.split_at_mut(cap);
+    let (gs, coef) = scratch
+        .split_at_mut_checked(cap)
+        .ok_or(ZoneError::NoScratch)?;
+    let coef = coef.get_mut(..cap).ok_or(ZoneError::NoScratch)?;
+    let c0 = coef.first_mut().ok_or(ZoneError::NoScratch)?;
+    *c0 = T::ONE;
     let big = T::from_f64(1.152_921_504_606_847e18); // 2^60
     let ln_big = T::from_f64(60.0 * core::f64::consts::LN_2);
     let tol = T::EPSILON * T::from_f64(2.0);
     let mut power = [T::ONE; N]; // gamma_j^(m-1)
     let mut shift = T::ZERO;
     let mut scale = ln_a0.exp();
-    coef[0] = T::ONE;
     let mut sum = T::ONE;
     let mut terms = 1usize;
     // Stop when the weight left is within the rounding of the sum itself.
@@ -326,17 +329,23 @@ fn quadratic_form<T: Real, const N: usize>(
             gk += power[j] * (gamma[j] + T::from_u32(k as u32) * delta[j] * (T::ONE - gamma[j]));
             power[j] *= gamma[j];
         }
-        gs[k] = gk * half;
-        let mut s = T::ZERO;
-        for mm in 1..=k {
-            s += gs[mm] * coef[k - mm];
+        if let Some(g) = gs.get_mut(k) {
+            *g = gk * half;
         }
+        // sum_{m=1..k} g_m a~_{k-m}: g_1.. forward against a~_{k-1}.. backward.
+        let (g_run, a_run) = (gs.get(1..=k).unwrap_or(&[]), coef.get(..k).unwrap_or(&[]));
+        let s = g_run
+            .iter()
+            .zip(a_run.iter().rev())
+            .fold(T::ZERO, |acc, (&g, &a)| acc + g * a);
         let a = s / T::from_u32(k as u32);
-        coef[k] = a;
+        if let Some(c) = coef.get_mut(k) {
+            *c = a;
+        }
         sum += a;
         terms += 1;
         if a > big {
-            for v in coef[..terms].iter_mut() {
+            for v in coef.iter_mut().take(terms) {
                 *v /= big;
             }
             sum /= big;
@@ -370,9 +379,9 @@ fn quadratic_form<T: Real, const N: usize>(
     let upward = q <= half;
     let mut p = T::ONE - q;
     let (mut outside, mut inside_up) = (T::ZERO, T::ZERO);
-    for k in 0..terms {
-        outside += coef[k] * q;
-        inside_up += coef[k] * p;
+    for (k, &c) in coef.iter().enumerate().take(terms) {
+        outside += c * q;
+        inside_up += c * p;
         if k + 1 < terms {
             q += t;
             p = if q <= half {
@@ -421,15 +430,18 @@ fn quadratic_form<T: Real, const N: usize>(
         // r_k = P_k / t_k downward (r_k = 1 + r_{k+1} h / (a_k + 1), every step adds, kept in
         // the front half of `scratch`), then P_k = r_k t_k with t_k upward from t_0: each P_k
         // carries the relative error of k products, not that of the top term's logarithm.
-        gs[terms - 1] = series;
-        for k in (0..terms - 1).rev() {
-            let a = a0 + T::from_u32(k as u32);
-            gs[k] = T::ONE + gs[k + 1] * h / (a + T::ONE);
+        let mut r = series;
+        for (k, g) in gs.iter_mut().enumerate().take(terms).rev() {
+            if k + 1 < terms {
+                let a = a0 + T::from_u32(k as u32);
+                r = T::ONE + r * h / (a + T::ONE);
+            }
+            *g = r;
         }
         let mut t = ln_term(a0).exp();
         let mut inside = T::ZERO;
-        for k in 0..terms {
-            inside += coef[k] * gs[k] * t;
+        for (k, (&c, &r)) in coef.iter().zip(gs.iter()).enumerate().take(terms) {
+            inside += c * r * t;
             t = t * h / (a0 + T::from_u32(k as u32) + T::ONE);
         }
         inside

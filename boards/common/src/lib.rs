@@ -538,6 +538,57 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
             per_call(t, 1)
         );
     }
+    // N-D zones: the 3-D ball probability for a moderately anisotropic process (standard
+    // deviations 1, 1.5, 2, correlated), 128 terms of room; point tests at N = 3 and 6.
+    let cov3 = Covariance::from_matrix([[1.0f32, 0.3, 0.1], [0.3, 2.25, -0.4], [0.1, -0.4, 4.0]]);
+    if let Ok(ball) = covgate::BallZone::new([0.0f32; 3], 9.0) {
+        let mut scratch = [0.0f32; 256];
+        let mut terms = 0;
+        let t = measure(clk, small, |i| {
+            let m = [i as f32 * 1e-3, 0.2, -0.1];
+            if let Ok(e) = black_box(&ball).probability(&black_box(m), &cov3, &mut scratch) {
+                terms = e.terms;
+            }
+        });
+        let _ = writeln!(out, "count ball3-probability-f32 {}", per_call(t, small));
+        let _ = writeln!(out, "ball3-probability-f32 terms {terms}");
+        let t = measure(clk, reps, |i| {
+            black_box(black_box(&ball).contains(&black_box([i as f32 * 1e-3, 0.2, -0.1])));
+        });
+        let _ = writeln!(out, "count ball3-contains-f32 {}", per_call(t, reps));
+    }
+    if let Ok(b) = covgate::BoxZone::new([-1.0f32, -2.0, f32::NEG_INFINITY], [1.0, 2.0, 0.5]) {
+        let t = measure(clk, reps, |i| {
+            black_box(black_box(&b).contains(&black_box([i as f32 * 1e-3, 0.2, -0.1])));
+        });
+        let _ = writeln!(out, "count box3-contains-f32 {}", per_call(t, reps));
+    }
+    let shape6: [f32; 21] = core::array::from_fn(|k| {
+        if [0, 6, 11, 15, 18, 20].contains(&k) {
+            4.0
+        } else {
+            0.25
+        }
+    });
+    if let Ok(e) = covgate::EllipsoidZone::<f32, 6, 21>::new([0.0; 6], shape6) {
+        let t = measure(clk, reps, |i| {
+            black_box(black_box(&e).contains(&black_box([
+                i as f32 * 1e-3,
+                0.2,
+                -0.1,
+                0.3,
+                0.0,
+                1.0,
+            ])));
+        });
+        let _ = writeln!(out, "count ellipsoid6-contains-f32 {}", per_call(t, reps));
+    }
+    if let Ok(b) = covgate::IntBall::new([100, -20, 7], 60) {
+        let t = measure(clk, reps, |i| {
+            black_box(black_box(&b).contains(&black_box([i as i32 & 31, -3, 9])));
+        });
+        let _ = writeln!(out, "count int-ball3-contains {}", per_call(t, reps));
+    }
     let mut cfg = WatchConfig::<f32, 2>::new(10, 0.0027);
     cfg.zone = CircleZone::new([0.0, 0.0], 60.0).ok().map(Zone::Circle);
     cfg.mewma = Some((0.1, 1e30, false));
@@ -672,6 +723,7 @@ pub fn exercise_everything(seed: u32) -> u32 {
         }
         w.relearn();
     }
+    acc += exercise_nd::<3, 6>(s, i) + exercise_nd::<6, 21>(s, i);
     let f = covgate::ReportFrame2 {
         node: 1,
         seq: black_box(seed),
@@ -685,6 +737,54 @@ pub fn exercise_everything(seed: u32) -> u32 {
     let mut fb = [0u8; 64];
     if f.encode(&mut fb).is_ok() {
         acc += u32::from(covgate::ReportFrame2::decode(black_box(&fb)).is_ok());
+    }
+    acc
+}
+
+/// The N-D zones at one dimension: point tests in float and integers, ball and ellipsoid
+/// probabilities with a small scratch buffer.
+fn exercise_nd<const N: usize, const L: usize>(s: f32, i: i32) -> u32 {
+    let mut acc = 0u32;
+    let x: [f32; N] = core::array::from_fn(|k| s + k as f32 * 0.25);
+    let xi: [i32; N] = core::array::from_fn(|k| i + k as i32);
+    let mut c = [[0.0f32; N]; N];
+    for (k, row) in c.iter_mut().enumerate() {
+        if let Some(v) = row.get_mut(k) {
+            *v = black_box(1.0) + k as f32 * 0.5;
+        }
+    }
+    let cov = Covariance::from_matrix(c);
+    let mut shape = [0.0f32; L];
+    let mut idx = 0;
+    for r in 0..N {
+        for col in r..N {
+            if let Some(v) = shape.get_mut(idx) {
+                *v = if r == col { black_box(4.0) } else { 0.5 };
+            }
+            idx += 1;
+        }
+    }
+    let mut scratch = [0.0f32; 64];
+    if let Ok(b) = covgate::BoxZone::new([-s; N], [black_box(2.0); N]) {
+        acc += u32::from(b.contains(&x));
+    }
+    if let Ok(b) = covgate::BallZone::new([s; N], black_box(3.0)) {
+        acc += u32::from(b.contains(&x));
+        if let Ok(e) = b.probability(&x, &cov, &mut scratch) {
+            acc += (e.inside > 0.5) as u32;
+        }
+    }
+    if let Ok(e) = covgate::EllipsoidZone::<f32, N, L>::new([s; N], shape) {
+        acc += u32::from(e.contains(&x));
+        if let Ok(p) = e.probability(&x, &cov, &mut scratch) {
+            acc += (p.outside < 0.5) as u32;
+        }
+    }
+    if let Ok(b) = covgate::IntBall::new([i; N], black_box(7)) {
+        acc += u32::from(b.contains(&xi));
+    }
+    if let Ok(b) = covgate::BoxZone::new([-3.5f64; N], [black_box(4.0f64); N]) {
+        acc += u32::from(covgate::IntBox::from_zone(&b).contains(&xi));
     }
     acc
 }
