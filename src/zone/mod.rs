@@ -20,8 +20,10 @@
 //! limit is in tolerance).
 //!
 //! In N dimensions (`N = 1..=6`): [`BoxZone`], [`BallZone`] and [`EllipsoidZone`], with the
-//! ball and ellipsoid probabilities returned as an [`Estimate`] with an error bound.
+//! ball and ellipsoid probabilities returned as an [`Estimate`] with an error bound, and the
+//! box probability for `N <= 3` as a [`Yield`].
 
+mod box3;
 mod confidence;
 mod integer;
 mod nd;
@@ -55,6 +57,8 @@ pub enum ZoneError {
     BadDistribution,
     /// The caller's scratch buffer is too short for one term of a series (needs 2 slots).
     NoScratch,
+    /// Not available for this dimension yet (box probabilities above 3 dimensions).
+    Unsupported,
 }
 
 impl fmt::Display for ZoneError {
@@ -66,6 +70,7 @@ impl fmt::Display for ZoneError {
             ZoneError::BadCoverage => "coverage must lie strictly between 0 and 1",
             ZoneError::BadDistribution => "mean not finite or covariance not positive definite",
             ZoneError::NoScratch => "scratch buffer too short",
+            ZoneError::Unsupported => "not available for this dimension yet",
         })
     }
 }

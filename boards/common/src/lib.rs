@@ -562,6 +562,11 @@ fn counts<W: Write, C: Ticks>(out: &mut W, clk: &mut C) {
             black_box(black_box(&b).contains(&black_box([i as f32 * 1e-3, 0.2, -0.1])));
         });
         let _ = writeln!(out, "count box3-contains-f32 {}", per_call(t, reps));
+        let t = measure(clk, small, |i| {
+            let m = [i as f32 * 1e-3, 0.2, -0.1];
+            black_box(black_box(&b).probability(&black_box(m), &cov3).ok());
+        });
+        let _ = writeln!(out, "count box3-probability-f32 {}", per_call(t, small));
     }
     let shape6: [f32; 21] = core::array::from_fn(|k| {
         if [0, 6, 11, 15, 18, 20].contains(&k) {
@@ -767,6 +772,9 @@ fn exercise_nd<const N: usize, const L: usize>(s: f32, i: i32) -> u32 {
     let mut scratch = [0.0f32; 64];
     if let Ok(b) = covgate::BoxZone::new([-s; N], [black_box(2.0); N]) {
         acc += u32::from(b.contains(&x));
+        if let Ok(y) = b.probability(&x, &cov) {
+            acc += (y.inside > 0.5) as u32;
+        }
     }
     if let Ok(b) = covgate::BallZone::new([s; N], black_box(3.0)) {
         acc += u32::from(b.contains(&x));
