@@ -110,53 +110,46 @@ fn simulated_in_control_arl_of_each_chart() {
     assert!(within(s, 1000.0, 0.05), "subgroup {s}");
 }
 
-/// Run lengths by independent code (not covgate's charts), for the shifted ARLs: the MEWMA
-/// of Lowry et al. (1992) with the asymptotic covariance, `T^2 = |z|^2 (2 - lambda) / lambda`,
-/// and Crosier's (1988) MCUSUM, `C = |S + w|`, `S = 0` if `C <= k` else `(S + w)(1 - k / C)`,
-/// statistic `|S|`, both on whitened 2-D data shifted by `shift`. Returns mean and standard
-/// error over `runs` runs.
-fn reference_arl(
-    rng: &mut Rng,
-    runs: u32,
-    shift: [f64; 2],
-    mewma: Option<(f64, f64)>,
-    mcusum: Option<(f64, f64)>,
-) -> (f64, f64) {
-    let (mut s, mut s2) = (0.0, 0.0);
-    for _ in 0..runs {
-        let (mut z, mut t) = ([0.0f64; 2], 0u32);
-        loop {
-            t += 1;
-            let w = [rng.normal() + shift[0], rng.normal() + shift[1]];
-            let alarm = if let Some((lambda, h)) = mewma {
-                z = [
-                    lambda * w[0] + (1.0 - lambda) * z[0],
-                    lambda * w[1] + (1.0 - lambda) * z[1],
-                ];
-                (z[0] * z[0] + z[1] * z[1]) * (2.0 - lambda) / lambda > h
-            } else if let Some((k, h)) = mcusum {
-                let v = [z[0] + w[0], z[1] + w[1]];
-                let c = v[0].hypot(v[1]);
-                z = if c <= k {
-                    [0.0; 2]
-                } else {
-                    [v[0] * (1.0 - k / c), v[1] * (1.0 - k / c)]
-                };
-                z[0].hypot(z[1]) > h
-            } else {
-                unreachable!("one chart")
-            };
-            if alarm || t == 100_000 {
-                break;
-            }
+/// Independent code for the shifted ARLs (not covgate's charts, only the shared run loop
+/// `arl::simulate`): the MEWMA of Lowry et al. (1992) with the asymptotic covariance,
+/// `T^2 = |z|^2 (2 - lambda) / lambda`, on whitened 2-D data.
+fn reference_mewma(lambda: f64, h: f64) -> impl FnMut(Option<&[f64; 2]>) -> bool {
+    let mut z = [0.0f64; 2];
+    move |w| match w {
+        None => {
+            z = [0.0; 2];
+            false
         }
-        let t = f64::from(t);
-        s += t;
-        s2 += t * t;
+        Some(w) => {
+            z = [
+                lambda * w[0] + (1.0 - lambda) * z[0],
+                lambda * w[1] + (1.0 - lambda) * z[1],
+            ];
+            (z[0] * z[0] + z[1] * z[1]) * (2.0 - lambda) / lambda > h
+        }
     }
-    let n = f64::from(runs);
-    let mean = s / n;
-    (mean, ((s2 / n - mean * mean) / (n - 1.0)).sqrt())
+}
+
+/// Crosier's (1988) MCUSUM, written out: `C = |S + w|`, `S = 0` if `C <= k` else
+/// `(S + w)(1 - k / C)`, statistic `|S|`.
+fn reference_mcusum(k: f64, h: f64) -> impl FnMut(Option<&[f64; 2]>) -> bool {
+    let mut s = [0.0f64; 2];
+    move |w| match w {
+        None => {
+            s = [0.0; 2];
+            false
+        }
+        Some(w) => {
+            let v = [s[0] + w[0], s[1] + w[1]];
+            let c = v[0].hypot(v[1]);
+            s = if c <= k {
+                [0.0; 2]
+            } else {
+                [v[0] * (1.0 - k / c), v[1] * (1.0 - k / c)]
+            };
+            s[0].hypot(s[1]) > h
+        }
+    }
 }
 
 #[test]
@@ -178,8 +171,20 @@ fn out_of_control_arl_after_a_shift_of_noncentrality_one() {
     let t_exact = 1.0 / (1.0 - arl::ncx2_cdf(h2, 2, 1.0));
     // MEWMA and MCUSUM: independent code, 20x the runs (standard error about 0.2 %).
     let mut rng_ref = Rng::new(502);
-    let (m_ref, m_ref_se) = reference_arl(&mut rng_ref, 20 * runs, shift, Some((0.1, 8.64)), None);
-    let (c_ref, c_ref_se) = reference_arl(&mut rng_ref, 20 * runs, shift, None, Some((0.5, 5.5)));
+    let (m_ref, m_ref_se) = simulate::<2>(
+        &mut rng_ref,
+        20 * runs,
+        100_000,
+        shift,
+        reference_mewma(0.1, 8.64),
+    );
+    let (c_ref, c_ref_se) = simulate::<2>(
+        &mut rng_ref,
+        20 * runs,
+        100_000,
+        shift,
+        reference_mcusum(0.5, 5.5),
+    );
     println!(
         "\nARL after a mean shift of noncentrality 1 (p = 2, all charts at ARL0 200), {runs} runs:"
     );

@@ -82,7 +82,7 @@ pub(crate) fn tvn_lower<T: Precision>(b: [T; 3], r: [T; 3]) -> T {
     let panels: u32 = if T::EPSILON < T::from_f64(1e-10) {
         12
     } else {
-        6
+        4
     };
     let half = T::from_f64(0.5);
     let mut sum = T::ZERO;
