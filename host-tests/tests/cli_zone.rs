@@ -278,3 +278,140 @@ fn zone_errors_are_one_line_exit_two() {
         assert_eq!(stderr.trim_end().lines().count(), 1, "{args:?}: {stderr:?}");
     }
 }
+
+#[test]
+fn zone_in_n_dimensions() {
+    // Isotropic 3-D process centred in a ball of radius 2 sd: chi-square with 3 degrees of
+    // freedom at 4, P = 0.7385358700508894 (scipy.stats.chi2.cdf(4, 3), confirmed by the
+    // closed form erf(sqrt 2) - sqrt(8 / pi) e^-2 at 1e-16).
+    let exact = libm::erf(2f64.sqrt()) - (8.0 / std::f64::consts::PI).sqrt() * (-2.0f64).exp();
+    let v = json(&[
+        "zone",
+        "--mean",
+        "1,2,3",
+        "--cov",
+        "1,0,0,1,0,1",
+        "--ball",
+        "1,2,3,4",
+    ]);
+    assert_eq!(
+        (v["zone"].as_str(), v["dim"].as_u64()),
+        (Some("ball"), Some(3))
+    );
+    assert!((v["inside"].as_f64().unwrap() - exact).abs() < 1e-14, "{v}");
+    assert!((v["outside"].as_f64().unwrap() - (1.0 - exact)).abs() < 1e-14);
+    assert!(v["error_estimate"].as_f64().unwrap() < 1e-12);
+    // The same ball as an ellipsoid Q = 4 I.
+    let e = json(&[
+        "zone",
+        "--mean",
+        "1,2,3",
+        "--cov",
+        "1,0,0,1,0,1",
+        "--ellipsoid",
+        "1,2,3,4,0,0,4,0,4",
+    ]);
+    assert!((e["inside"].as_f64().unwrap() - exact).abs() < 1e-14, "{e}");
+    // Independent axes, a 3-D box: the product of normal intervals.
+    let b = json(&[
+        "zone",
+        "--mean",
+        "0,0,0",
+        "--cov",
+        "1,0,0,4,0,9",
+        "--box",
+        "-1,1,-inf,2,-3,inf",
+    ]);
+    let phi = |x: f64| 0.5 * libm::erfc(-x / 2f64.sqrt());
+    let want = (phi(1.0) - phi(-1.0)) * phi(1.0) * (1.0 - phi(-1.0));
+    assert!((b["inside"].as_f64().unwrap() - want).abs() < 1e-14, "{b}");
+    assert!(b["error_estimate"].is_null());
+    // f32 follows f64.
+    let b32 = json(&[
+        "zone",
+        "--mean",
+        "0,0,0",
+        "--cov",
+        "1,0,0,4,0,9",
+        "--box",
+        "-1,1,-inf,2,-3,inf",
+        "--precision",
+        "f32",
+    ]);
+    assert!((b32["inside"].as_f64().unwrap() - want).abs() < 2e-6);
+    // Bad input: one line on stderr, exit 2, nothing on stdout.
+    for args in [
+        &[
+            "zone",
+            "--mean",
+            "0,0,0",
+            "--cov",
+            "1,0,0,1,0",
+            "--ball",
+            "0,0,0,1",
+        ][..],
+        &[
+            "zone",
+            "--mean",
+            "0,0,0",
+            "--cov",
+            "1,2,0,1,0,1",
+            "--ball",
+            "0,0,0,1",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0,0",
+            "--cov",
+            "1,0,0,1,0,1",
+            "--ball",
+            "0,0,1",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0,0,0",
+            "--cov",
+            "1,0,0,0,1,0,0,1,0,1",
+            "--box",
+            "0,1,0,1,0,1,0,1",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0,0,0,0,0,0",
+            "--cov",
+            "1",
+            "--ball",
+            "0,1",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0,0",
+            "--cov",
+            "1,0,0,1,0,1",
+            "--ellipsoid",
+            "0,0,0,1,2,0,1,0,1",
+        ],
+        &[
+            "zone",
+            "--mean",
+            "0,0,0",
+            "--cov",
+            "1,0,0,1,0,1",
+            "--ball",
+            "0,0,0,1",
+            "--baseline-size",
+            "30",
+        ],
+    ] {
+        let (code, stdout, stderr) = run(args);
+        assert_eq!(code, 2, "{args:?}");
+        assert!(
+            stdout.is_empty() && stderr.lines().count() == 1,
+            "{args:?}: {stderr}"
+        );
+    }
+}
