@@ -301,6 +301,15 @@ fn zone_in_n_dimensions() {
     assert!((v["inside"].as_f64().unwrap() - exact).abs() < 1e-14, "{v}");
     assert!((v["outside"].as_f64().unwrap() - (1.0 - exact)).abs() < 1e-14);
     assert!(v["error_estimate"].as_f64().unwrap() < 1e-12);
+    // Isotropic: the brackets close on the value.
+    let (lo, hi) = (
+        v["lower_bound"].as_f64().unwrap(),
+        v["upper_bound"].as_f64().unwrap(),
+    );
+    assert!(
+        lo <= exact + 1e-14 && exact <= hi + 1e-14 && hi - lo < 1e-12,
+        "{v}"
+    );
     // The same ball as an ellipsoid Q = 4 I.
     let e = json(&[
         "zone",
@@ -326,6 +335,11 @@ fn zone_in_n_dimensions() {
     let want = (phi(1.0) - phi(-1.0)) * phi(1.0) * (1.0 - phi(-1.0));
     assert!((b["inside"].as_f64().unwrap() - want).abs() < 1e-14, "{b}");
     assert!(b["error_estimate"].is_null());
+    let (lo, hi) = (
+        b["lower_bound"].as_f64().unwrap(),
+        b["upper_bound"].as_f64().unwrap(),
+    );
+    assert!(lo <= want && want <= hi, "{b}");
     // f32 follows f64.
     let b32 = json(&[
         "zone",

@@ -43,6 +43,16 @@ fn one_factor_boxes_match_mpmath() {
             .unwrap()
             .probability(&[0.0; 3], &cov)
             .unwrap();
+        // The cheap brackets hold the reference.
+        let bb = BoxZone::new(lo, hi)
+            .unwrap()
+            .bounds(&[0.0; 3], &cov)
+            .unwrap();
+        assert!(
+            bb.inside_lower <= inside + 1e-15 && inside <= bb.inside_upper + 1e-15,
+            "{bb:?}"
+        );
+        assert!(bb.outside_lower <= outside + 1e-15 && outside <= bb.outside_upper + 1e-15);
         worst_in = worst_in.max((y.inside - inside).abs());
         worst_out = worst_out.max((y.outside - outside).abs());
         if outside > 1e-9 {

@@ -10,8 +10,8 @@
 //!
 //! A value exactly on the boundary conforms; NaN never does.
 
-use super::ZoneError;
-use crate::math::{cholesky, symmetric_eigen, ChiSquare, Real};
+use super::{Bounds, ZoneError};
+use crate::math::{cholesky, norm_cdf, norm_sf, symmetric_eigen, ChiSquare, Real};
 use crate::moments::{pairs, unpack, Shape};
 use crate::Covariance;
 
@@ -57,6 +57,40 @@ impl<T: Real, const N: usize> BoxZone<T, N> {
     #[inline]
     pub fn contains(&self, x: &[T; N]) -> bool {
         (0..N).all(|i| x[i] >= self.lo[i] && x[i] <= self.hi[i])
+    }
+
+    /// Brackets of the box probability from the per-axis normal tails alone, any `N`: the
+    /// outside is at least the largest axis's and at most their sum (Boole's inequality); the
+    /// inside is at most the smallest axis's and at least one minus that sum. No quadrature.
+    /// [`ZoneError::BadDistribution`] unless `mean` is finite and every variance positive.
+    pub fn bounds(&self, mean: &[T; N], cov: &Covariance<T, N>) -> Result<Bounds<T>, ZoneError> {
+        let m = cov.matrix();
+        let (mut out_max, mut out_sum, mut in_min) = (T::ZERO, T::ZERO, T::ONE);
+        for i in 0..N {
+            let v = m[i][i];
+            if !(mean[i].is_finite() && v > T::ZERO && v.is_finite()) {
+                return Err(ZoneError::BadDistribution);
+            }
+            let s = v.sqrt();
+            let (a, b) = ((self.lo[i] - mean[i]) / s, (self.hi[i] - mean[i]) / s);
+            let (below, above) = (norm_cdf(a), norm_sf(b));
+            let inside = if a > T::ZERO {
+                norm_sf(a) - above
+            } else {
+                norm_cdf(b) - below
+            };
+            let out = below + above;
+            out_max = out_max.max(out);
+            out_sum += out;
+            in_min = in_min.min(inside.max(T::ZERO));
+        }
+        let clamp = |v: T| v.max(T::ZERO).min(T::ONE);
+        Ok(Bounds {
+            inside_lower: clamp(T::ONE - out_sum),
+            inside_upper: clamp(in_min),
+            outside_lower: clamp(out_max),
+            outside_upper: clamp(out_sum),
+        })
     }
 }
 
@@ -112,6 +146,32 @@ impl<T: Real, const N: usize> BallZone<T, N> {
         cov: &Covariance<T, N>,
         scratch: &mut [T],
     ) -> Result<Estimate<T>, ZoneError> {
+        let (m, n) = self.form(mean, cov)?;
+        quadratic_form(&m, &n, scratch)
+    }
+
+    /// Brackets of [`probability`](Self::probability) from the form's extreme eigenvalues:
+    /// `lambda_min |v + b|^2 <= form <= lambda_max |v + b|^2`, so the inside lies between the
+    /// noncentral chi-square probabilities of the two isotropic forms (each a short series
+    /// with Poisson weights). No bound is lost to rounding: each side is widened by its own
+    /// error. Errors as for [`probability`](Self::probability).
+    pub fn bounds(
+        &self,
+        mean: &[T; N],
+        cov: &Covariance<T, N>,
+        scratch: &mut [T],
+    ) -> Result<Bounds<T>, ZoneError> {
+        let (m, n) = self.form(mean, cov)?;
+        isotropic_bounds(&m, &n, scratch)
+    }
+
+    /// `M = L / r`, `n = (mean - c) / r` for `cov = L L'` and radius `r`.
+    #[allow(clippy::type_complexity)]
+    fn form(
+        &self,
+        mean: &[T; N],
+        cov: &Covariance<T, N>,
+    ) -> Result<([[T; N]; N], [T; N]), ZoneError> {
         let (l, _) = factor(mean, cov)?;
         let r = self.diameter * T::from_f64(0.5);
         let mut m = [[T::ZERO; N]; N];
@@ -122,7 +182,7 @@ impl<T: Real, const N: usize> BallZone<T, N> {
             }
             n[i] = (mean[i] - self.centre[i]) / r;
         }
-        quadratic_form(&m, &n, scratch)
+        Ok((m, n))
     }
 }
 
@@ -217,8 +277,29 @@ impl<T: Real, const N: usize, const L: usize> EllipsoidZone<T, N, L> {
         cov: &Covariance<T, N>,
         scratch: &mut [T],
     ) -> Result<Estimate<T>, ZoneError> {
+        let (m, n) = self.form(mean, cov)?;
+        quadratic_form(&m, &n, scratch)
+    }
+
+    /// Brackets of [`probability`](Self::probability), as [`BallZone::bounds`].
+    pub fn bounds(
+        &self,
+        mean: &[T; N],
+        cov: &Covariance<T, N>,
+        scratch: &mut [T],
+    ) -> Result<Bounds<T>, ZoneError> {
+        let (m, n) = self.form(mean, cov)?;
+        isotropic_bounds(&m, &n, scratch)
+    }
+
+    /// `M = F^-1 L` (lower triangular), `n = F^-1 (mean - c)`.
+    #[allow(clippy::type_complexity)]
+    fn form(
+        &self,
+        mean: &[T; N],
+        cov: &Covariance<T, N>,
+    ) -> Result<([[T; N]; N], [T; N]), ZoneError> {
         let (l, _) = factor(mean, cov)?;
-        // M = F^-1 L (lower triangular), n = F^-1 (mean - c).
         let mut m = [[T::ZERO; N]; N];
         for j in 0..N {
             for i in j..N {
@@ -229,8 +310,7 @@ impl<T: Real, const N: usize, const L: usize> EllipsoidZone<T, N, L> {
                 m[i][j] = s * self.inv_diag[i];
             }
         }
-        let n = self.unit_coords(mean);
-        quadratic_form(&m, &n, scratch)
+        Ok((m, self.unit_coords(mean)))
     }
 }
 
@@ -261,6 +341,29 @@ fn factor<T: Real, const N: usize>(
     cholesky(cov.matrix()).ok_or(ZoneError::BadDistribution)
 }
 
+/// Bounds of `P(|M w + n|^2 <= 1)` from the isotropic forms with the extreme eigenvalues.
+fn isotropic_bounds<T: Real, const N: usize>(
+    m: &[[T; N]; N],
+    n: &[T; N],
+    scratch: &mut [T],
+) -> Result<Bounds<T>, ZoneError> {
+    let (lambda, delta) = decompose(m, n)?;
+    let (lo, hi) = (
+        lambda.first().copied().unwrap_or(T::ONE),
+        lambda.last().copied().unwrap_or(T::ONE),
+    );
+    // The larger eigenvalue makes the form larger: less inside.
+    let wide = series(&[hi; N], &delta, scratch)?;
+    let narrow = series(&[lo; N], &delta, scratch)?;
+    let clamp = |v: T| v.max(T::ZERO).min(T::ONE);
+    Ok(Bounds {
+        inside_lower: clamp(wide.inside - wide.error),
+        inside_upper: clamp(narrow.inside + narrow.error),
+        outside_lower: clamp(narrow.outside - narrow.error),
+        outside_upper: clamp(wide.outside + wide.error),
+    })
+}
+
 /// `P(|M w + n|^2 <= 1)` and `P(> 1)` for `w ~ N(0, I)` and lower-triangular `M`, by Ruben's
 /// series (see [`EllipsoidZone::probability`]).
 fn quadratic_form<T: Real, const N: usize>(
@@ -268,8 +371,17 @@ fn quadratic_form<T: Real, const N: usize>(
     n: &[T; N],
     scratch: &mut [T],
 ) -> Result<Estimate<T>, ZoneError> {
-    // B = M M' = U diag(lambda) U'; M w ~ U diag(sqrt(lambda)) v, so the form is
-    // sum lambda_j (v_j + (U'n)_j / sqrt(lambda_j))^2.
+    let (lambda, delta) = decompose(m, n)?;
+    series(&lambda, &delta, scratch)
+}
+
+/// The form `|M w + n|^2` as `sum lambda_j (v_j + b_j)^2` with independent standard normal
+/// `v`: the eigenvalues `lambda` of `B = M M'` (ascending) and `delta_j = b_j^2`, where
+/// `B = U diag(lambda) U'`, `M w ~ U diag(sqrt(lambda)) v` and `b_j = (U'n)_j / sqrt(lambda_j)`.
+fn decompose<T: Real, const N: usize>(
+    m: &[[T; N]; N],
+    n: &[T; N],
+) -> Result<([T; N], [T; N]), ZoneError> {
     let mut b = [[T::ZERO; N]; N];
     for (i, j) in pairs::<N>() {
         let mut s = T::ZERO;
@@ -280,24 +392,37 @@ fn quadratic_form<T: Real, const N: usize>(
         b[j][i] = s;
     }
     let (lambda, u) = symmetric_eigen(&b);
-    let beta = lambda[0];
-    if !(beta > T::ZERO && lambda[N - 1].is_finite()) {
+    let positive = lambda.first().is_some_and(|&l| l > T::ZERO);
+    if !(positive && lambda.iter().all(|l| l.is_finite())) {
         return Err(ZoneError::BadDistribution);
     }
-    let half = T::from_f64(0.5);
-    // gamma_j = 1 - beta / lambda_j in [0, 1); delta_j = (U'n)_j^2 / lambda_j; the series
-    // starts at ln a_0 = -sum delta_j / 2 + sum ln(beta / lambda_j) / 2.
-    let mut gamma = [T::ZERO; N];
     let mut delta = [T::ZERO; N];
-    let mut ln_a0 = T::ZERO;
     for j in 0..N {
         let mut p = T::ZERO;
         for i in 0..N {
             p += u[i][j] * n[i];
         }
+        delta[j] = p * p / lambda[j];
+    }
+    Ok((lambda, delta))
+}
+
+/// `P(sum lambda_j (v_j + b_j)^2 <= 1)` and `> 1` by Ruben's series, `lambda` ascending and
+/// positive, `delta_j = b_j^2`.
+fn series<T: Real, const N: usize>(
+    lambda: &[T; N],
+    delta: &[T; N],
+    scratch: &mut [T],
+) -> Result<Estimate<T>, ZoneError> {
+    let beta = lambda.first().copied().unwrap_or(T::ONE);
+    let half = T::from_f64(0.5);
+    // gamma_j = 1 - beta / lambda_j in [0, 1); the series starts at
+    // ln a_0 = -sum delta_j / 2 + sum ln(beta / lambda_j) / 2.
+    let mut gamma = [T::ZERO; N];
+    let mut ln_a0 = T::ZERO;
+    for j in 0..N {
         let ratio = beta / lambda[j];
         gamma[j] = (T::ONE - ratio).max(T::ZERO);
-        delta[j] = p * p / lambda[j];
         ln_a0 += half * (ratio.ln() - delta[j]);
     }
     // First pass: a~_k = a_k / (a_0 e^shift) by a~_k = (1/k) sum_{m=1..k} g_m a~_{k-m} with

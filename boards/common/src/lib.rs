@@ -775,17 +775,26 @@ fn exercise_nd<const N: usize, const L: usize>(s: f32, i: i32) -> u32 {
         if let Ok(y) = b.probability(&x, &cov) {
             acc += (y.inside > 0.5) as u32;
         }
+        if let Ok(y) = b.bounds(&x, &cov) {
+            acc += (y.inside_lower > 0.5) as u32;
+        }
     }
     if let Ok(b) = covgate::BallZone::new([s; N], black_box(3.0)) {
         acc += u32::from(b.contains(&x));
         if let Ok(e) = b.probability(&x, &cov, &mut scratch) {
             acc += (e.inside > 0.5) as u32;
         }
+        if let Ok(e) = b.bounds(&x, &cov, &mut scratch) {
+            acc += (e.inside_upper > 0.5) as u32;
+        }
     }
     if let Ok(e) = covgate::EllipsoidZone::<f32, N, L>::new([s; N], shape) {
         acc += u32::from(e.contains(&x));
         if let Ok(p) = e.probability(&x, &cov, &mut scratch) {
             acc += (p.outside < 0.5) as u32;
+        }
+        if let Ok(p) = e.bounds(&x, &cov, &mut scratch) {
+            acc += (p.outside_upper < 0.5) as u32;
         }
     }
     if let Ok(b) = covgate::IntBall::new([i; N], black_box(7)) {

@@ -264,7 +264,7 @@ fn evaluate_nd<T: Precision, const N: usize, const L: usize>(
             .to_string()
     };
     let mut scratch = vec![T::ZERO; 2 * SERIES_TERMS];
-    let (kind, inside, outside, error, method) = if let Some(r) = &a.box_zone {
+    let (kind, inside, outside, error, method, bounds) = if let Some(r) = &a.box_zone {
         let v = numbers("box", r, 2 * N)?;
         let lo: [T; N] = std::array::from_fn(|i| t(v[2 * i]));
         let hi: [T; N] = std::array::from_fn(|i| t(v[2 * i + 1]));
@@ -281,14 +281,16 @@ fn evaluate_nd<T: Precision, const N: usize, const L: usize>(
         } else {
             "normal tails (1-D) or bivariate normal orthants (2-D); outside from the tails directly"
         };
-        ("box", y.inside, y.outside, None, method)
+        let b = z.bounds(&m, &c).map_err(|_| not_pd())?;
+        ("box", y.inside, y.outside, None, method, b)
     } else if let Some(r) = &a.ball {
         let v = numbers("ball", r, N + 1)?;
         finite("ball", &v)?;
         let z = BallZone::new(std::array::from_fn(|i| t(v[i])), t(v[N]))
             .map_err(|e| format!("--ball: {e} (need DIAMETER > 0)"))?;
         let e = z.probability(&m, &c, &mut scratch).map_err(|_| not_pd())?;
-        ("ball", e.inside, e.outside, Some(e.error), SERIES_METHOD)
+        let b = z.bounds(&m, &c, &mut scratch).map_err(|_| not_pd())?;
+        ("ball", e.inside, e.outside, Some(e.error), SERIES_METHOD, b)
     } else if let Some(r) = &a.ellipsoid {
         let v = numbers("ellipsoid", r, N + L)?;
         finite("ellipsoid", &v)?;
@@ -298,12 +300,14 @@ fn evaluate_nd<T: Precision, const N: usize, const L: usize>(
                 format!("--ellipsoid: {e} (need Q positive definite, upper triangle row by row)")
             })?;
         let e = z.probability(&m, &c, &mut scratch).map_err(|_| not_pd())?;
+        let b = z.bounds(&m, &c, &mut scratch).map_err(|_| not_pd())?;
         (
             "ellipsoid",
             e.inside,
             e.outside,
             Some(e.error),
             SERIES_METHOD,
+            b,
         )
     } else {
         return Err("one of --box, --ball, --ellipsoid is required".into());
@@ -320,10 +324,16 @@ fn evaluate_nd<T: Precision, const N: usize, const L: usize>(
         "ppm_outside": cap.ppm.to_f64(),
         "equivalent_index": if index.is_finite() { json!(index) } else { json!(index.to_string()) },
         "error_estimate": error.map(|e| e.to_f64()),
-        "lower_bound": null,
-        "upper_bound": null,
+        "lower_bound": bounds.inside_lower.to_f64(),
+        "upper_bound": bounds.inside_upper.to_f64(),
+        "outside_lower_bound": bounds.outside_lower.to_f64(),
+        "outside_upper_bound": bounds.outside_upper.to_f64(),
         "method": method,
-        "bounds": "not yet available for N-D zones",
+        "bounds": if kind == "box" {
+            "lower/upper bound the inside probability from the per-axis tails alone (Boole's inequality)"
+        } else {
+            "lower/upper bound the inside probability by the isotropic forms with the extreme eigenvalues"
+        },
         "equivalent_index_definition": "Phi^-1(1 - outside) / 3",
     }))
 }
