@@ -41,6 +41,18 @@ fn state_sizes() {
         ("Baseline<f32, 2>", size_of::<Baseline<f32, 2>>()),
         ("IntGate2", size_of::<IntGate2>()),
         ("Zone<f32>", size_of::<Zone<f32>>()),
+        ("BoxZone<f32, 3>", size_of::<covgate::BoxZone<f32, 3>>()),
+        ("BallZone<f32, 3>", size_of::<covgate::BallZone<f32, 3>>()),
+        (
+            "EllipsoidZone<f32, 3, 6>",
+            size_of::<covgate::EllipsoidZone<f32, 3, 6>>(),
+        ),
+        (
+            "EllipsoidZone<f32, 6, 21>",
+            size_of::<covgate::EllipsoidZone<f32, 6, 21>>(),
+        ),
+        ("IntBox<3>", size_of::<covgate::IntBox<3>>()),
+        ("IntBall<3>", size_of::<covgate::IntBall<3>>()),
         (
             "Monitor<f32, 2> (gate, zone, all charts)",
             size_of::<Monitor<f32, 2>>(),
