@@ -354,74 +354,17 @@ fn zone_in_n_dimensions() {
     ]);
     assert!((b32["inside"].as_f64().unwrap() - want).abs() < 2e-6);
     // Bad input: one line on stderr, exit 2, nothing on stdout.
-    for args in [
-        &[
-            "zone",
-            "--mean",
-            "0,0,0",
-            "--cov",
-            "1,0,0,1,0",
-            "--ball",
-            "0,0,0,1",
-        ][..],
-        &[
-            "zone",
-            "--mean",
-            "0,0,0",
-            "--cov",
-            "1,2,0,1,0,1",
-            "--ball",
-            "0,0,0,1",
-        ],
-        &[
-            "zone",
-            "--mean",
-            "0,0,0",
-            "--cov",
-            "1,0,0,1,0,1",
-            "--ball",
-            "0,0,1",
-        ],
-        &[
-            "zone",
-            "--mean",
-            "0,0,0,0",
-            "--cov",
-            "1,0,0,0,1,0,0,1,0,1",
-            "--box",
-            "0,1,0,1,0,1,0,1",
-        ],
-        &[
-            "zone",
-            "--mean",
-            "0,0,0,0,0,0,0",
-            "--cov",
-            "1",
-            "--ball",
-            "0,1",
-        ],
-        &[
-            "zone",
-            "--mean",
-            "0,0,0",
-            "--cov",
-            "1,0,0,1,0,1",
-            "--ellipsoid",
-            "0,0,0,1,2,0,1,0,1",
-        ],
-        &[
-            "zone",
-            "--mean",
-            "0,0,0",
-            "--cov",
-            "1,0,0,1,0,1",
-            "--ball",
-            "0,0,0,1",
-            "--baseline-size",
-            "30",
-        ],
+    for line in [
+        "zone --mean 0,0,0 --cov 1,0,0,1,0 --ball 0,0,0,1",
+        "zone --mean 0,0,0 --cov 1,2,0,1,0,1 --ball 0,0,0,1",
+        "zone --mean 0,0,0 --cov 1,0,0,1,0,1 --ball 0,0,1",
+        "zone --mean 0,0,0,0 --cov 1,0,0,0,1,0,0,1,0,1 --box 0,1,0,1,0,1,0,1",
+        "zone --mean 0,0,0,0,0,0,0 --cov 1 --ball 0,1",
+        "zone --mean 0,0,0 --cov 1,0,0,1,0,1 --ellipsoid 0,0,0,1,2,0,1,0,1",
+        "zone --mean 0,0,0 --cov 1,0,0,1,0,1 --ball 0,0,0,1 --baseline-size 30",
     ] {
-        let (code, stdout, stderr) = run(args);
+        let args: Vec<&str> = line.split_whitespace().collect();
+        let (code, stdout, stderr) = run(&args);
         assert_eq!(code, 2, "{args:?}");
         assert!(
             stdout.is_empty() && stderr.lines().count() == 1,
