@@ -210,15 +210,8 @@ impl<T: Real, const N: usize> Baseline<T, N> {
     /// baseline. NaN in gives NaN out.
     #[inline]
     pub fn whiten(&self, x: &[T; N]) -> [T; N] {
-        let mut z = [T::ZERO; N];
-        for i in 0..N {
-            let mut r = x[i] - self.mean[i];
-            for k in 0..i {
-                r -= self.chol[i][k] * z[k];
-            }
-            z[i] = r * self.inv_diag[i];
-        }
-        z
+        let d: [T; N] = core::array::from_fn(|i| x[i] - self.mean[i]);
+        crate::math::forward_sub(&self.chol, &self.inv_diag, &d)
     }
 
     /// `L v`: a whitened (or chart) vector back in data units, relative to the mean.

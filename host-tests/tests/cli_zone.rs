@@ -322,7 +322,7 @@ fn zone_in_n_dimensions() {
     ]);
     assert!((e["inside"].as_f64().unwrap() - exact).abs() < 1e-14, "{e}");
     // Independent axes, a 3-D box: the product of normal intervals.
-    let b = json(&[
+    let box3 = [
         "zone",
         "--mean",
         "0,0,0",
@@ -330,7 +330,8 @@ fn zone_in_n_dimensions() {
         "1,0,0,4,0,9",
         "--box",
         "-1,1,-inf,2,-3,inf",
-    ]);
+    ];
+    let b = json(&box3);
     let phi = |x: f64| 0.5 * libm::erfc(-x / 2f64.sqrt());
     let want = (phi(1.0) - phi(-1.0)) * phi(1.0) * (1.0 - phi(-1.0));
     assert!((b["inside"].as_f64().unwrap() - want).abs() < 1e-14, "{b}");
@@ -341,17 +342,7 @@ fn zone_in_n_dimensions() {
     );
     assert!(lo <= want && want <= hi, "{b}");
     // f32 follows f64.
-    let b32 = json(&[
-        "zone",
-        "--mean",
-        "0,0,0",
-        "--cov",
-        "1,0,0,4,0,9",
-        "--box",
-        "-1,1,-inf,2,-3,inf",
-        "--precision",
-        "f32",
-    ]);
+    let b32 = json(&[&box3[..], &["--precision", "f32"]].concat());
     assert!((b32["inside"].as_f64().unwrap() - want).abs() < 2e-6);
     // Bad input: one line on stderr, exit 2, nothing on stdout.
     for line in [

@@ -91,17 +91,7 @@ impl ChiSquare {
         let h = x * T::from_f64(0.5);
         if h < a + T::ONE {
             // A&S 6.5.29: P(a, h) = h^a e^-h / Gamma(a + 1) * sum h^n / ((a+1)...(a+n)).
-            let (mut term, mut sum) = (T::ONE, T::ONE);
-            let mut n = T::ONE;
-            for _ in 0..200 {
-                term = term * h / (a + n);
-                sum += term;
-                if term <= sum * T::EPSILON {
-                    break;
-                }
-                n += T::ONE;
-            }
-            (a * h.ln() - h - (a + T::ONE).ln_gamma()).exp() * sum
+            (a * h.ln() - h - (a + T::ONE).ln_gamma()).exp() * gamma_series(a, h)
         } else {
             T::ONE - self.upper(x)
         }
@@ -167,6 +157,23 @@ impl ChiSquare {
             })
         }
     }
+}
+
+/// `sum_{n >= 0} h^n / ((a + 1) ... (a + n))`, the series of the regularized lower incomplete
+/// gamma function `P(a, h) = h^a e^-h / Gamma(a + 1) * series` (A&S 6.5.29). Converges
+/// quickly for `h < a + 1`; summed until a term no longer changes the sum (at most 400).
+pub(crate) fn gamma_series<T: Real>(a: T, h: T) -> T {
+    let (mut term, mut sum) = (T::ONE, T::ONE);
+    let mut n = T::ONE;
+    for _ in 0..400 {
+        term = term * h / (a + n);
+        sum += term;
+        if term <= sum * T::EPSILON {
+            break;
+        }
+        n += T::ONE;
+    }
+    sum
 }
 
 #[cfg(test)]

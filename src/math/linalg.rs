@@ -106,6 +106,25 @@ pub fn cholesky<T: Real, const N: usize>(a: &[[T; N]; N]) -> Option<([[T; N]; N]
     Some((l, inv))
 }
 
+/// `y = L^-1 v` by forward substitution, for a lower-triangular `L` given with the reciprocals
+/// of its diagonal (as [`cholesky`] returns them): no division. NaN in gives NaN out.
+#[inline(always)]
+pub(crate) fn forward_sub<T: Real, const N: usize>(
+    l: &[[T; N]; N],
+    inv_diag: &[T; N],
+    v: &[T; N],
+) -> [T; N] {
+    let mut y = [T::ZERO; N];
+    for i in 0..N {
+        let mut s = v[i];
+        for k in 0..i {
+            s -= l[i][k] * y[k];
+        }
+        y[i] = s * inv_diag[i];
+    }
+    y
+}
+
 /// Eigenvalues (ascending) and unit eigenvectors of a symmetric matrix: `a = V diag(l) V'`,
 /// with eigenvector `k` in column `k` of `V` (`v[i][k]`).
 ///

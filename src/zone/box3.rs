@@ -114,9 +114,7 @@ impl<T: Precision, const N: usize> BoxZone<T, N> {
         mean: &[T; N],
         cov: &Covariance<T, N>,
     ) -> Result<Yield<T>, ZoneError> {
-        if !mean.iter().all(|v| v.is_finite()) || crate::math::cholesky(cov.matrix()).is_none() {
-            return Err(ZoneError::BadDistribution);
-        }
+        super::nd::factor(mean, cov)?;
         let m = cov.matrix();
         let (zlo, zhi) = (self.lo(), self.hi());
         let get = |a: &[T; N], i: usize| a.get(i).copied().unwrap_or(T::ZERO);

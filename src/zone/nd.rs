@@ -11,7 +11,9 @@
 //! A value exactly on the boundary conforms; NaN never does.
 
 use super::{Bounds, ZoneError};
-use crate::math::{cholesky, norm_cdf, norm_sf, symmetric_eigen, ChiSquare, Real};
+use crate::math::{
+    cholesky, forward_sub, gamma_series, norm_cdf, norm_sf, symmetric_eigen, ChiSquare, Real,
+};
 use crate::moments::{pairs, unpack, Shape};
 use crate::Covariance;
 
@@ -229,15 +231,8 @@ impl<T: Real, const N: usize, const L: usize> EllipsoidZone<T, N, L> {
 
     /// `y = F^-1 (x - c)` for the Cholesky factor `F` of `Q`: the ellipsoid is `|y| <= 1`.
     fn unit_coords(&self, x: &[T; N]) -> [T; N] {
-        let mut y = [T::ZERO; N];
-        for i in 0..N {
-            let mut s = x[i] - self.centre[i];
-            for k in 0..i {
-                s -= self.factor[i][k] * y[k];
-            }
-            y[i] = s * self.inv_diag[i];
-        }
-        y
+        let d: [T; N] = core::array::from_fn(|i| x[i] - self.centre[i]);
+        forward_sub(&self.factor, &self.inv_diag, &d)
     }
 
     /// `(x - c)' Q^-1 (x - c) <= 1`, by forward substitution (no inverse). NaN is outside.
@@ -300,14 +295,17 @@ impl<T: Real, const N: usize, const L: usize> EllipsoidZone<T, N, L> {
         cov: &Covariance<T, N>,
     ) -> Result<([[T; N]; N], [T; N]), ZoneError> {
         let (l, _) = factor(mean, cov)?;
+        // Column by column: M's column j is F^-1 times L's (zero above the diagonal, so the
+        // substitution leaves it zero there).
         let mut m = [[T::ZERO; N]; N];
         for j in 0..N {
-            for i in j..N {
-                let mut s = l[i][j];
-                for k in j..i {
-                    s -= self.factor[i][k] * m[k][j];
-                }
-                m[i][j] = s * self.inv_diag[i];
+            let col = forward_sub(
+                &self.factor,
+                &self.inv_diag,
+                &core::array::from_fn(|i| l[i][j]),
+            );
+            for i in 0..N {
+                m[i][j] = col[i];
             }
         }
         Ok((m, self.unit_coords(mean)))
@@ -331,7 +329,7 @@ pub struct Estimate<T> {
 }
 
 /// Cholesky factor of a valid distribution's covariance.
-fn factor<T: Real, const N: usize>(
+pub(super) fn factor<T: Real, const N: usize>(
     mean: &[T; N],
     cov: &Covariance<T, N>,
 ) -> Result<([[T; N]; N], [T; N]), ZoneError> {
@@ -542,16 +540,7 @@ fn series<T: Real, const N: usize>(
         // P(a, h) at the top: A&S 6.5.29, e^-h h^a / Gamma(a + 1) sum h^n / ((a+1)...(a+n)),
         // which converges quickly here (h is below the top's a).
         let a_top = a0 + T::from_u32(terms as u32 - 1);
-        let (mut term, mut series) = (T::ONE, T::ONE);
-        let mut i = T::ONE;
-        for _ in 0..400 {
-            term = term * h / (a_top + i);
-            series += term;
-            if term <= series * T::EPSILON {
-                break;
-            }
-            i += T::ONE;
-        }
+        let series = gamma_series(a_top, h);
         // r_k = P_k / t_k downward (r_k = 1 + r_{k+1} h / (a_k + 1), every step adds, kept in
         // the front half of `scratch`), then P_k = r_k t_k with t_k upward from t_0: each P_k
         // carries the relative error of k products, not that of the top term's logarithm.
